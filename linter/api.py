@@ -1,0 +1,152 @@
+"""The public Python API: ``check(old, new, ...) -> Report``.
+
+The command line is a thin layer over this module; other tools import it directly.
+"""
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Iterable
+
+from . import __version__, catalogue, engine
+from .errors import InputError, UsageError
+from .formats import EXTENSIONS, Options, Schema, adapter, detect, read_text
+from .model import MODES, Change, Comparison, Compat, Finding, Location, meet_all
+
+
+@dataclass
+class Report:
+    mode: str
+    comparisons: list[Comparison]
+    consumers: list[dict] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+    # Settings a reporter may show (e.g. the encodings counted).
+    settings: dict[str, Any] = field(default_factory=dict)
+
+    @property
+    def findings(self) -> list[Finding]:
+        return [f for c in self.comparisons for f in c.findings]
+
+    @property
+    def compatibility(self) -> Compat:
+        return meet_all(f.compatibility for f in self.findings)
+
+    @property
+    def passed(self) -> bool:
+        return self.compatibility.keeps(self.mode) and not any(f.severity == "error" for f in self.findings)
+
+    @property
+    def exit_code(self) -> int:
+        return 0 if self.passed else 1
+
+    def to_json(self) -> dict:
+        from .report.json import to_json
+
+        return to_json(self)
+
+
+@dataclass(frozen=True)
+class Pair:
+    old: Path | None
+    new: Path | None
+    old_display: str
+    new_display: str
+
+
+def _schema_files(root: Path) -> dict[str, Path]:
+    found = {}
+    for dirpath, dirnames, filenames in os.walk(root, onerror=_walk_error):
+        dirnames[:] = sorted(d for d in dirnames if not d.startswith("."))
+        for name in filenames:
+            path = Path(dirpath) / name
+            if path.suffix.lower() in EXTENSIONS:
+                found[path.relative_to(root).as_posix()] = path
+    return found
+
+
+def _walk_error(exc: OSError):
+    raise InputError(f"cannot read directory: {exc.strerror or exc}", exc.filename)
+
+
+def pairs(old: str | Path, new: str | Path) -> list[Pair]:
+    """Pair two files, or the schema files of two directories by relative path."""
+    old, new = Path(old), Path(new)
+    for path in (old, new):
+        if not path.exists():
+            raise InputError("no such file or directory", str(path))
+    if old.is_dir() != new.is_dir():
+        raise UsageError(f"cannot compare a directory with a file: {old} and {new}")
+    if not old.is_dir():
+        return [Pair(old, new, str(old), str(new))]
+    olds, news = _schema_files(old), _schema_files(new)
+    if not olds and not news:
+        raise InputError("no schema files (.avsc, .proto, .json) in either directory", f"{old} and {new}")
+    return [
+        Pair(olds.get(rel), news.get(rel),
+             str(old / rel), str(new / rel))
+        for rel in sorted(set(olds) | set(news))
+    ]
+
+
+def _file_change(kind: str, fmt: str, pair: Pair) -> Change:
+    path = pair.old_display if kind == "schema-file-removed" else pair.new_display
+    loc = Location(path)
+    return Change(kind=kind, schema=path, path="", old=pair.old_display if pair.old else None,
+                  new=pair.new_display if pair.new else None,
+                  old_loc=loc if pair.old else None, new_loc=loc if pair.new else None,
+                  facts={"file": path, "format": fmt})
+
+
+def _format_of(path: Path, display: str, forced: str | None) -> str:
+    return forced or detect(path, display)
+
+
+def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None = None,
+            options: Options | None = None) -> list[Comparison]:
+    options = options or Options()
+    cat = catalogue.load()
+    comparisons = []
+    for pair in pairs_:
+        if pair.old is None or pair.new is None:
+            present = pair.new if pair.old is None else pair.old
+            display = pair.new_display if pair.old is None else pair.old_display
+            fmt = _format_of(present, display, format)
+            kind = "schema-file-added" if pair.old is None else "schema-file-removed"
+            findings = engine.judge([_file_change(kind, fmt, pair)], cat, policy)
+            comparisons.append(Comparison(pair.old_display, pair.new_display, fmt, tuple(findings)))
+            continue
+        fmt_old = _format_of(pair.old, pair.old_display, format)
+        fmt_new = _format_of(pair.new, pair.new_display, format)
+        if fmt_old != fmt_new:
+            raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
+                             pair.new_display)
+        module = adapter(fmt_old)
+        old_schema = module.load(pair.old, pair.old_display, options)
+        new_schema = module.load(pair.new, pair.new_display, options)
+        changes = module.diff(old_schema, new_schema)
+        findings = engine.judge(changes, cat, policy)
+        comparisons.append(Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings)))
+    return comparisons
+
+
+def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
+          include: Iterable[str] = (), policy: engine.Policy | None = None,
+          options: Options | None = None) -> Report:
+    """Compare OLD with NEW (two files or two directories) and classify every change."""
+    if mode not in MODES:
+        raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
+    policy = policy or engine.Policy(mode=mode)
+    options = options or Options(include=tuple(include))
+    comparisons = compare(pairs(old, new), policy, format=format, options=options)
+    return Report(mode=policy.mode, comparisons=comparisons)
+
+
+def load(path: str | Path, *, format: str | None = None, options: Options | None = None) -> Schema:
+    """Parse one schema file with its adapter (what ``check`` does for each side)."""
+    path = Path(path)
+    fmt = _format_of(path, str(path), format)
+    return adapter(fmt).load(path, str(path), options or Options())
+
+
+__all__ = ["Report", "check", "load", "pairs", "compare", "read_text", "__version__"]

@@ -1,0 +1,100 @@
+"""The command line: parse options, call the API, render, return an exit status.
+
+Exit statuses: 0 the change keeps the mode; 1 it does not, or a finding is at severity
+error; 2 bad input or usage (one line naming file and position); 3 an internal error.
+"""
+from __future__ import annotations
+
+import sys
+
+import click
+
+from . import __version__
+from .errors import InputError
+from .model import MODES
+
+OUTPUTS = ("text", "json")
+FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
+
+
+class Failed(Exception):
+    """Carries an exit status out of a command without printing a traceback."""
+
+    def __init__(self, status: int):
+        self.status = status
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="evolint")
+@click.option("--debug", is_flag=True, help="Show the traceback of an internal error.")
+@click.pass_context
+def cli(ctx, debug):
+    """Lint a schema change: is it backward, forward or fully compatible, or breaking?"""
+    ctx.ensure_object(dict)["debug"] = debug
+
+
+@cli.command()
+@click.argument("old", type=click.Path())
+@click.argument("new", type=click.Path())
+@click.option("--mode", type=click.Choice(MODES), default="backward", show_default=True,
+              help="The compatibility the change must keep.")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
+              help="Report format.")
+def check(old, new, mode, format_, include, output):
+    """Compare OLD with NEW (two files, or two directories paired by relative path)."""
+    from .api import check as run_check
+    from .report import render
+
+    report = run_check(old, new, mode=mode, format=format_, include=include)
+    render(output, report, sys.stdout)
+    raise Failed(report.exit_code)
+
+
+@cli.command()
+@click.argument("rule_id", required=False)
+@click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True)
+def rules(rule_id, output):
+    """List the rule catalogue, or explain one rule (by id or name)."""
+    from .rulesdoc import explain, listing
+
+    text = explain(rule_id, output) if rule_id else listing(output)
+    click.echo(text, nl=not text.endswith("\n"))
+
+
+def main(argv=None) -> None:
+    """Entry point: maps every outcome onto the documented exit statuses."""
+    debug = "--debug" in (sys.argv[1:] if argv is None else argv)
+    try:
+        returned = cli.main(args=argv, prog_name="evolint", standalone_mode=False)
+        status = returned if isinstance(returned, int) else 0
+    except Failed as exc:
+        status = exc.status
+    except InputError as exc:
+        click.echo(f"evolint: error: {exc}", err=True)
+        status = 2
+    except click.exceptions.Abort:
+        click.echo("evolint: aborted", err=True)
+        status = 2
+    except click.ClickException as exc:
+        # Usage errors: click's own message, one line, then status 2.
+        click.echo(f"evolint: error: {' '.join(exc.format_message().split())}", err=True)
+        status = 2
+    except click.exceptions.Exit as exc:
+        status = exc.exit_code
+    except KeyboardInterrupt:
+        status = 130
+    except BrokenPipeError:
+        status = 0
+    except Exception as exc:  # noqa: BLE001 - the last line of defence
+        if debug:
+            import traceback
+
+            traceback.print_exc()
+        click.echo(f"evolint: internal error: {type(exc).__name__}: {exc}. This is a bug in evolint; "
+                   "please report it with the command you ran (add --debug for the traceback).", err=True)
+        status = 3
+    sys.exit(status)

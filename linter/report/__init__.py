@@ -1,0 +1,15 @@
+"""Reporters: each renders a Report to a stream it is handed.
+
+A reporter is a function ``render(report, stream, **options)``; the CLI looks them up
+in ``REPORTERS`` and imports only the one a run asks for.
+"""
+from __future__ import annotations
+
+import importlib
+
+REPORTERS = {"text": "text", "json": "json"}
+
+
+def render(name: str, report, stream, **options) -> None:
+    module = importlib.import_module(f".{REPORTERS[name]}", __name__)
+    module.render(report, stream, **options)
