@@ -104,6 +104,7 @@ _STOP = set("./(){}")
 # What the lenient (pint) reading accepts: letters, digits, spaces and arithmetic; pint
 # evaluates expressions, so anything else is refused before it gets there.
 _LENIENT = re.compile(r"^[A-Za-z_µμ°Ω0-9 .*/^()\-²³]{1,64}$")
+_STRAY_DOT = re.compile(r"(?<!\d)\.|\.(?!\d)")  # pint reads '.' only inside numbers
 
 
 class UnitSyntaxError(ValueError):
@@ -289,7 +290,7 @@ def read(text: str) -> Reading:
 
 
 def _lenient(text: str, ucum_error: UnitSyntaxError) -> Reading:
-    if not _LENIENT.match(text):
+    if not _LENIENT.match(text) or _STRAY_DOT.search(text):
         raise ucum_error
     ureg = registry()
     try:
@@ -359,10 +360,10 @@ def _converter(a: Reading, b: Reading):
 
 
 def _tidy(value: float) -> float:
-    """Round away float noise (0.0010000000000000002 -> 0.001) at 12 significant digits."""
+    """Round away float noise (0.0010000000000000002 -> 0.001) at 15 significant digits."""
     if value == 0 or not math.isfinite(value):
         return value
-    return float(f"{value:.12g}")
+    return float(f"{value:.15g}")
 
 
 def number(value: float) -> str:
