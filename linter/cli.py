@@ -44,12 +44,14 @@ def cli(ctx, debug):
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
-def check(old, new, mode, format_, include, output):
+@click.option("--consumers", type=click.Path(), default=None,
+              help="Consumer registry (YAML): say who reads what changed and who must be told.")
+def check(old, new, mode, format_, include, output, consumers):
     """Compare OLD with NEW (two files, or two directories paired by relative path)."""
     from .api import check as run_check
     from .report import render
 
-    report = run_check(old, new, mode=mode, format=format_, include=include)
+    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)
 
