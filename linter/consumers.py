@@ -98,6 +98,12 @@ def _file_level(finding: Finding, comparison: Comparison) -> bool:
     return not finding.path and finding.schema in (comparison.old, comparison.new)
 
 
+def _about_the_file(finding: Finding, comparison: Comparison, roots) -> bool:
+    """Type-level findings that concern every OLD type of the file: the file was added or
+    removed, or a type the OLD side does not have appeared (a renamed root)."""
+    return _file_level(finding, comparison) or (not finding.path and finding.schema not in roots)
+
+
 def _roots(comparison: Comparison) -> Mapping[str, frozenset[str]]:
     """The OLD side's roots and field paths; for a removed file, read from the file itself."""
     if comparison.old_fields or not any(_file_level(f, comparison) for f in comparison.findings):
@@ -125,7 +131,8 @@ def _scope(read: Read, comparison: Comparison, roots, numbered) -> _Scope | None
         paths = set().union(*roots.values()) if roots else None
         return _Scope(list(numbered), paths)
     in_old = read.schema in roots
-    picked = [(i, f) for i, f in numbered if f.schema == read.schema or (in_old and _file_level(f, comparison))]
+    picked = [(i, f) for i, f in numbered
+              if f.schema == read.schema or (in_old and _about_the_file(f, comparison, roots))]
     if not in_old and not picked:
         return None
     return _Scope(picked, set(roots[read.schema]) if in_old else None)

@@ -193,6 +193,16 @@ def test_a_removed_file_touches_readers_of_its_types(registry):
     assert set(verdicts(found).values()) == {"must-be-told"}
 
 
+def test_a_renamed_type_touches_readers_of_the_old_name(registry):
+    renamed = finding("", Compat.BREAKING, schema="utility.metering.MeterRecord")
+    found = consumers.impacts([comparison(renamed)], registry, "backward")
+    assert set(verdicts(found).values()) == {"must-be-told"}
+    # A field-level finding in a type OLD does not have is not read by name.
+    added = finding("volume", Compat.BREAKING, schema="utility.metering.MeterRecord")
+    found = consumers.impacts([comparison(added)], registry, "backward")
+    assert verdicts(found)["billing"] == "unaffected"
+
+
 def test_stale_fields_are_reported(tmp_path):
     registry = consumers.load(write(tmp_path, REGISTRY.replace("[meter_id, volume]", "[meter_id, volum, 'site.geo']")))
     found = consumers.impacts([comparison()], registry, "backward")
