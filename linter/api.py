@@ -127,7 +127,7 @@ def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None
         changes = module.diff(old_schema, new_schema)
         findings = engine.judge(changes, cat, policy)
         comparisons.append(Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings),
-                                      old_fields=old_schema.fields))
+                                      old_fields={r: frozenset(p) for r, p in old_schema.fields.items()}))
     return comparisons
 
 

@@ -252,3 +252,39 @@ def test_text_report_ends_with_who_must_be_told(registry):
     tail = out.getvalue().split("Consumers to tell (2)")[1]
     assert "leak-detection <leaks@example.org>" in tail and "data-archive <archive@example.org>" in tail
     assert "Informed: network-planning" in tail and "Unaffected: billing" in tail
+
+
+# --- properties of impact ---------------------------------------------------------------
+
+from hypothesis import given, strategies as st  # noqa: E402
+
+PATHS = st.lists(st.sampled_from(["site", "id", "district", "volume", "flow_rate"]), max_size=3).map(".".join)
+COMPATS = st.sampled_from(list(Compat))
+
+
+@given(st.lists(st.tuples(PATHS, COMPATS, st.booleans()), max_size=6),
+       st.lists(PATHS.filter(bool), min_size=1, max_size=3))
+def test_stricter_needs_are_told_at_least_as_often(found, fields):
+    from linter.registry import Consumer, Read, Registry
+    from linter.paths import parse
+
+    read = Read(METER, tuple(parse(f) for f in fields))
+    everything = Read(METER)
+    registry = Registry("synthetic", tuple(
+        [Consumer(f"{needs}-{n}", "x@example.org", (r,), needs=needs)
+         for needs in ("backward", "forward", "full") for n, r in (("some", read), ("all", everything))]))
+    comp = comparison(*(finding(p, c, semantic=s) for p, c, s in found))
+    by = {i.consumer.name: i for i in consumers.impacts([comp], registry, "backward")}
+    for n in ("some", "all"):
+        full = {r.finding for r in by[f"full-{n}"].reasons}
+        assert {r.finding for r in by[f"backward-{n}"].reasons} <= full
+        assert {r.finding for r in by[f"forward-{n}"].reasons} <= full
+    # Reading some of the fields never concerns more findings than reading all of them.
+    assert set(by["full-some"].findings) <= set(by["full-all"].findings)
+    # A reader of every field is concerned by every finding in its type.
+    assert list(by["full-all"].findings) == list(range(len(found)))
+    # A finding at a path on the branch of a field read concerns the reader.
+    for i, (path, _, _) in enumerate(found):
+        segs = path.split(".") if path else []
+        on_branch = any(segs[:len(f.split("."))] == f.split(".")[:len(segs)] for f in fields)
+        assert (i in by["full-some"].findings) == on_branch
