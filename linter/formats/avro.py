@@ -197,7 +197,7 @@ class _Differ:
                                                ctx.old_loc, ctx.new_loc))
         pairs, old_left, new_left = _pair_fields(o, n)
         for of, nf in pairs:
-            self.field(of, nf, ctx)
+            self.field(of, nf, ctx, o, n)
         for of in old_left:
             fctx = ctx.at(of.name, self.old.loc(of.raw), None)
             kind = "avro-field-removed-with-default" if of.has_default else "avro-field-removed-without-default"
@@ -207,7 +207,7 @@ class _Differ:
             kind = "avro-field-added-with-default" if nf.has_default else "avro-field-added-without-default"
             self.emit(kind, fctx, None, nf.type.describe(), field=nf.name, record=n.name)
 
-    def field(self, of: Field, nf: Field, ctx: Ctx) -> None:
+    def field(self, of: Field, nf: Field, ctx: Ctx, o: Node, n: Node) -> None:
         fctx = ctx.at(of.name, self.old.loc(of.raw), self.new.loc(nf.raw))
         if of.name != nf.name:
             backward = of.name in nf.aliases or nf.has_default
@@ -225,8 +225,10 @@ class _Differ:
         self.doc(of.doc, nf.doc, fctx, f"field {of.name}")
         if of.order != nf.order:
             self.emit("avro-field-order-changed", fctx, of.order, nf.order)
+        # A record's unit applies to its fields without one (docs/annotations.md).
         self.changes.extend(annotation_changes(fctx.schema, fctx.path, of.annotations, nf.annotations,
-                                               fctx.old_loc, fctx.new_loc))
+                                               fctx.old_loc, fctx.new_loc,
+                                               old_type=o.annotations, new_type=n.annotations))
         self.node(of.type, nf.type, fctx)
 
     def enum(self, o: Node, n: Node, ctx: Ctx) -> None:

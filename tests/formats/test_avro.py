@@ -122,7 +122,7 @@ def test_every_change_carries_locations(tmp_path):
     changes = avro.diff(avro.load(write(tmp_path, "o.avsc", old), "o.avsc"),
                         avro.load(write(tmp_path, "n.avsc", new), "n.avsc"))
     assert {c.kind for c in changes} == {"avro-type-promoted-lossy", "avro-field-default-changed",
-                                         "avro-type-promoted", "unit-changed",
+                                         "avro-type-promoted", "unit-rescaled",
                                          "avro-field-added-without-default"}
     for c in changes:
         assert c.old_loc or c.new_loc
