@@ -18,8 +18,8 @@ from ..model import Change, Location
 from ..semantics import annotation_changes
 from ..sourcemap import SourceMap
 from . import Options, Schema, parse_json, read_text
-from .avro_resolve import first_match, matches, names_match, promotable
-from .avro_schema import PRIMITIVES, Field, Model, Node, default_branch, parse
+from .avro_resolve import first_match, promotable, resolve
+from .avro_schema import PRIMITIVES, Field, Model, Node, parse
 
 name = "avro"
 
@@ -40,8 +40,8 @@ KINDS = frozenset({
     "avro-enum-symbol-removed", "avro-enum-symbol-removed-covered-by-default",
     "avro-enum-default-changed", "avro-enum-symbols-reordered",
     "avro-fixed-size-changed",
-    "avro-union-branch-added", "avro-union-branch-added-readable",
-    "avro-union-branch-removed", "avro-union-branch-removed-readable", "avro-union-branches-reordered",
+    "avro-union-branch-added", "avro-union-new-branch-read-as-other",
+    "avro-union-branch-removed", "avro-union-old-branch-read-as-other", "avro-union-branches-reordered",
     "avro-logical-type-changed", "avro-decimal-changed",
 })
 
@@ -290,46 +290,53 @@ class _Differ:
 
     # -- unions -------------------------------------------------------------------------
     def union(self, o: Node, n: Node, ctx: Ctx) -> None:
+        """Unions in all four shapes (a non-union side is a union of one branch).
+
+        The spec resolves each writer branch against the first reader branch it matches,
+        so each direction has its own pairing: OLD's branches into NEW (backward) and NEW's
+        into OLD (forward). A pair both directions agree on is compared as any two types;
+        a branch whose reader differs by direction gets a kind with a one-sided effect.
+        """
         old_b = o.branches if o.kind == "union" else [o]
         new_b = n.branches if n.kind == "union" else [n]
-        pairs: list[tuple[int, int]] = []
-        free_o, free_n = list(range(len(old_b))), list(range(len(new_b)))
-
-        def pair_by(test):
-            for i in list(free_o):
-                j = next((j for j in free_n if test(old_b[i], new_b[j])), None)
-                if j is not None:
-                    pairs.append((i, j))
-                    free_o.remove(i)
-                    free_n.remove(j)
-
-        pair_by(_same_identity)                    # the same type, perhaps renamed with an alias
-        pair_by(matches)                           # OLD's branch readable as a NEW branch
-        pair_by(lambda b, c: matches(c, b))        # NEW's branch readable as an OLD branch
-        for i in free_o:
-            target = first_match(old_b[i], new_b)
-            kind = "avro-union-branch-removed-readable" if target else "avro-union-branch-removed"
-            self.emit(kind, ctx, o.describe(), n.describe(), branch=old_b[i].describe(),
-                      read_as=target.describe() if target else None)
-        for j in free_n:
-            target = first_match(new_b[j], old_b)
-            kind = "avro-union-branch-added-readable" if target else "avro-union-branch-added"
-            self.emit(kind, ctx, o.describe(), n.describe(), branch=new_b[j].describe(),
-                      read_as=target.describe() if target else None)
+        into_new = [first_match(b, new_b) for b in old_b]   # backward: OLD writes, NEW reads
+        into_old = [first_match(c, old_b) for c in new_b]   # forward: NEW writes, OLD reads
+        mutual = [(i, new_b.index(t)) for i, t in enumerate(into_new)
+                  if t is not None and into_old[new_b.index(t)] is old_b[i]]
+        # A primitive branch retyped by promotion ([null, int] -> [null, long]): OLD reads
+        # into it, nothing of OLD reads it back; reported as the type change it is.
+        for i, t in enumerate(into_new):
+            if t is None or t.kind not in PRIMITIVES or old_b[i].kind not in PRIMITIVES:
+                continue
+            j = new_b.index(t)
+            if into_old[j] is None and sum(x is t for x in into_new) == 1 and (i, j) not in mutual:
+                mutual.append((i, j))
+        paired_old = {i for i, _ in mutual}
+        paired_new = {j for _, j in mutual}
+        for i, b in enumerate(old_b):
+            if i in paired_old:
+                continue
+            target = into_new[i]
+            readable = target is not None and not resolve(b, target)
+            kind = "avro-union-old-branch-read-as-other" if readable else "avro-union-branch-removed"
+            self.emit(kind, ctx, o.describe(), n.describe(), branch=b.describe(),
+                      read_as=target.describe() if target else "nothing")
+        for j, c in enumerate(new_b):
+            if j in paired_new:
+                continue
+            target = into_old[j]
+            readable = target is not None and not resolve(c, target)
+            kind = "avro-union-new-branch-read-as-other" if readable else "avro-union-branch-added"
+            self.emit(kind, ctx, o.describe(), n.describe(), branch=c.describe(),
+                      read_as=target.describe() if target else "nothing")
         if o.kind == n.kind == "union":
-            order = [j for _, j in sorted(pairs)]
+            order = [j for _, j in sorted(mutual)]
             if order != sorted(order):
                 self.emit("avro-union-branches-reordered", ctx, o.describe(), n.describe())
-        for i, j in sorted(pairs):
-            self.node(old_b[i], new_b[j], replace(ctx, top=ctx.top))
+        for i, j in sorted(mutual):
+            self.node(old_b[i], new_b[j], ctx)
 
     HANDLERS = {"record": record, "enum": enum, "fixed": fixed, "array": container, "map": container}
-
-
-def _same_identity(b: Node, c: Node) -> bool:
-    if b.named or c.named:
-        return b.kind == c.kind and (names_match(b, c) or names_match(c, b))
-    return b.kind == c.kind
 
 
 def _pair_fields(o: Node, n: Node):
