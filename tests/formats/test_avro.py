@@ -3,6 +3,7 @@
 Verdicts per rule live in tests/cases/avro/; the codec cross-checks in test_avro_codec.py.
 """
 import json
+from pathlib import Path
 
 import click
 import pytest
@@ -147,3 +148,17 @@ def test_avsc_with_json_extension_is_detected(tmp_path):
 
     path = write(tmp_path, "reading.json", GOOD)
     assert detect(path, "reading.json") == "avro"
+
+
+def test_the_example_scenario_shows_each_kind_of_outcome(validate_report):
+    import linter
+
+    root = Path(__file__).resolve().parents[2] / "schemas_example"
+    report = validate_report(linter.check(root / "v1", root / "v2", mode="backward").to_json())
+    verdicts = {Path(c["old"]).name: c["compatibility"] for c in report["comparisons"] if c["format"] == "avro"}
+    assert verdicts == {"billing_period.avsc": "backward", "leak_alert.avsc": "breaking",
+                        "meter_reading.avsc": "breaking"}
+    found = {(f["schema"], f["path"], f["rule"]) for f in report["findings"]}
+    assert ("utility.metering.MeterReading", "volume", "S003") in found        # L -> m3
+    assert ("utility.leaks.LeakAlert", "estimated_loss", "S012") in found      # meaning changed
+    assert ("utility.leaks.LeakAlert", "raised_at", "A070") in found           # millis -> micros

@@ -17,6 +17,7 @@ from hypothesis import assume, event, given, note, settings
 from hypothesis import strategies as st
 
 from linter import catalogue
+from linter.errors import InputError
 from linter.formats import avro
 from linter.formats.avro_resolve import resolve
 from linter.model import Compat, meet_all
@@ -166,3 +167,68 @@ def _under_container(node, path):
             return True
         node = f.type
     return node.kind in ("array", "map", "union")
+
+
+# -- where fastavro and the specification part ways (measured on fastavro 1.13; docs/avro.md)
+def _verdict(tmp, old_json, new_json):
+    old, new = load(tmp, "old.avsc", old_json), load(tmp, "new.avsc", new_json)
+    return {CAT.for_kind(c.kind).id for c in avro.diff(old, new)}, spec_verdict(old.model.model.root,
+                                                                                new.model.model.root)
+
+
+def test_decimal_scale_change_decodes_in_fastavro_but_does_not_match(tmp):
+    import decimal
+
+    old = {"type": "bytes", "logicalType": "decimal", "precision": 10, "scale": 2}
+    new = dict(old, scale=3)
+    # fastavro reads with the writer's scale: no error, the reader's scale is ignored.
+    assert roundtrip(old, new, decimal.Decimal("12.34")) == decimal.Decimal("12.34")
+    rules, spec = _verdict(tmp, old, new)
+    assert rules == {"A071"} and spec is Compat.BREAKING  # Logical Types (decimal): no match
+
+
+def test_timestamp_unit_change_is_invisible_to_fastavro(tmp):
+    import datetime
+
+    old = {"type": "long", "logicalType": "timestamp-millis"}
+    new = {"type": "long", "logicalType": "timestamp-micros"}
+    t = datetime.datetime(2026, 3, 1, 6, 30, 0, 125000, tzinfo=datetime.timezone.utc)
+    assert roundtrip(old, new, t) == t  # converted with the writer's logical type
+    rules, spec = _verdict(tmp, old, new)
+    assert rules == {"A070"} and spec is Compat.FULL  # resolves, but the meaning changed
+
+
+def test_long_above_2_53_rounds_when_read_as_double(tmp):
+    value = 2**53 + 1
+    assert roundtrip("long", "double", value) == float(value) != value
+    rules, spec = _verdict(tmp, "long", "double")
+    assert rules == {"A021"} and spec is Compat.BACKWARD  # the spec allows the promotion
+
+
+def test_non_utf8_bytes_read_as_string_fail_in_fastavro(tmp):
+    with pytest.raises(UnicodeDecodeError):
+        roundtrip("bytes", "string", b"\xff\xfe")
+    rules, spec = _verdict(tmp, "bytes", "string")
+    assert rules == {"A025"} and spec is Compat.FULL  # the spec allows bytes <-> string
+
+
+def test_relative_alias_in_another_namespace_matches_in_fastavro_only(tmp):
+    old = {"type": "record", "name": "Site", "namespace": "utility.leaks", "fields": []}
+    new = {"type": "record", "name": "Location", "namespace": "utility.places", "aliases": ["Site"],
+           "fields": []}
+    assert roundtrip(old, new, {}) == {}  # fastavro compares the alias's unqualified name
+    rules, spec = _verdict(tmp, old, new)
+    # Names: a relative alias is resolved in its type's namespace, utility.places.Site.
+    assert rules == {"A031"} and spec is Compat.BREAKING
+
+
+@pytest.mark.parametrize("schema", [
+    {"type": "record", "name": "R", "fields": [{"name": "a", "type": "int"}, {"name": "a", "type": "int"}]},
+    ["int", "int"],
+])
+def test_fastavro_parses_what_the_spec_forbids(tmp, schema):
+    from fastavro import parse_schema
+
+    parse_schema(schema)  # accepted by fastavro 1.13 ...
+    with pytest.raises(InputError):
+        load(tmp, "bad.avsc", schema)  # ... refused by evolint (Complex Types: records, unions)
