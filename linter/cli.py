@@ -15,6 +15,7 @@ from .model import MODES
 
 OUTPUTS = ("text", "json")
 FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
+ENCODINGS = ("json",)
 
 
 class Failed(Exception):
@@ -42,14 +43,17 @@ def cli(ctx, debug):
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
               help="Add a Protobuf import path (repeatable).")
+@click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
+              help="Also count this encoding's effect toward the verdict (Protobuf: json, the proto3 "
+                   "JSON mapping; the binary encoding always counts). Repeatable.")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
-def check(old, new, mode, format_, include, output):
+def check(old, new, mode, format_, include, encodings, output):
     """Compare OLD with NEW (two files, or two directories paired by relative path)."""
     from .api import check as run_check
     from .report import render
 
-    report = run_check(old, new, mode=mode, format=format_, include=include)
+    report = run_check(old, new, mode=mode, format=format_, include=include, encodings=encodings)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)
 
