@@ -94,16 +94,19 @@ def _first_error(diagnostics: str, sources: Sequence[Source], roots: list[str]) 
         match = DIAGNOSTIC.match(line)
         if match:
             parsed.append(match)
-    # Prefer a diagnostic with a position; "Import ... had errors" only echoes an earlier one.
-    positioned = [m for m in parsed if m["line"] and "was not found or had errors" not in m["message"]]
-    best = positioned[0] if positioned else (parsed[0] if parsed else None)
+    # Prefer a diagnostic with a position in the user's files; "Import ... had errors" only
+    # echoes an earlier one, unless that earlier one (a file not found) has no position.
+    positioned = [m for m in parsed if m["line"]]
+    primary = [m for m in positioned if "was not found or had errors" not in m["message"]]
+    best = (primary or positioned or parsed or [None])[0]
     if best is None:
         display = sources[0].display if sources else None
         return InputError(f"protoc failed: {' '.join(lines) or 'no diagnostic'}", display)
     file = by_virtual.get(best["file"]) or _on_disk(best["file"], roots)
     message = best["message"]
-    if not best["line"] and len(parsed) > 1:
-        message = f"{message} ({parsed[1]['message']})"
+    unplaced = [m for m in parsed if not m["line"] and m is not best]
+    if unplaced:
+        message = f"{message} ({unplaced[0]['file']}: {unplaced[0]['message']})"
     return InputError(message, file, int(best["line"]) if best["line"] else None,
                       int(best["column"]) if best["column"] else None)
 
