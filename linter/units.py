@@ -120,6 +120,11 @@ class Ucum:
     atoms: tuple[tuple[str, str, int], ...]
     annotations: tuple[str, ...]
 
+    @property
+    def scale_with_offset(self) -> bool:
+        """A temperature scale standing alone (Cel, [degF]): converted with its offset."""
+        return self.number == 1 and len(self.atoms) == 1 and self.atoms[0][1] in OFFSET
+
 
 class _Reader:
     def __init__(self, text: str):
@@ -230,7 +235,10 @@ def parse(text: str) -> Ucum:
         raise UnitSyntaxError("empty unit")
     reader = _Reader(text)
     reader.main_term()
-    return Ucum(text, reader.number, tuple(reader.atoms), tuple(sorted(reader.annotations)))
+    code = Ucum(text, reader.number, tuple(reader.atoms), tuple(sorted(reader.annotations)))
+    if code.scale_with_offset and code.atoms[0][::2] != ("", 1):
+        raise UnitSyntaxError(f"{text!r}: a prefix or exponent on a temperature scale with an offset is ambiguous")
+    return code
 
 
 # --- pint: imported only from here on -------------------------------------------------
@@ -277,11 +285,8 @@ def read(text: str) -> Reading:
     except UnitSyntaxError as exc:
         return _lenient(text, exc)
     ureg = registry()
-    if code.number == 1 and len(code.atoms) == 1 and code.atoms[0][1] in OFFSET:
-        prefix, atom, exponent = code.atoms[0]
-        if prefix or exponent != 1:
-            raise UnitSyntaxError(f"{text!r}: a prefix or exponent on a temperature scale with an offset is ambiguous")
-        q = _atom_quantity(atom, False)
+    if code.scale_with_offset:
+        q = _atom_quantity(code.atoms[0][1], False)
         return Reading(text, 1.0, q.units, code.annotations, "ucum")
     q = ureg.Quantity(float(code.number))
     for prefix, atom, exponent in code.atoms:

@@ -164,3 +164,24 @@ def test_pint_is_imported_when_unit_texts_differ():
         "from linter import semantics\n"
         "semantics.annotation_changes('t', 'f', {'unit': 'L'}, {'unit': 'l'})\n")
     assert "pint" in loaded
+
+
+# --- properties --------------------------------------------------------------------------
+
+from hypothesis import given, strategies as st  # noqa: E402
+
+UNITS = st.sampled_from(["ms", "s", "min", "h", "L", "l", "m3", "dm3", "mL", "[gal_us]", "kPa", "bar",
+                         "[psi]", "Pa", "Cel", "[degF]", "K", "kW.h", "MJ", "W", "%", "[ppm]", "1",
+                         "L/min", "m3/h", "{reading}", "{reading}/h", "glugs", "meter", "m"])
+
+
+@given(UNITS, UNITS)
+def test_unit_findings_are_symmetric(a, b):
+    # Common practice (algebra of units): the change b -> a undoes a -> b, so it has the
+    # same class, and its factor is the inverse.
+    there, back = changes({"unit": a}, {"unit": b}), changes({"unit": b}, {"unit": a})
+    assert [c.kind for c in there] == [c.kind for c in back]
+    if there and there[0].kind in ("unit-rescaled", "unit-offset-changed"):
+        assert there[0].facts["factor"] * back[0].facts["factor"] == pytest.approx(1.0, rel=1e-9)
+    for c in there:
+        assert c.facts["old_unit"] == a and c.facts["new_unit"] == b

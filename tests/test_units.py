@@ -140,17 +140,18 @@ def test_dimension_changes(old, new):
 
 @pytest.mark.parametrize("text", [
     "", "m s", "kg..m", "(m", "m)", "{reading", "[psi", "glugs", "10*", "K/", "m2.",
+    "mCel", "Cel2",
 ])
 def test_not_ucum(text):
-    # UCUM syntax (from memory, §1-§7): no blanks, balanced brackets, known atoms.
+    # UCUM syntax (from memory, §1-§7): no blanks, balanced brackets, known atoms; and
+    # (common practice) no prefix or power on a temperature scale that has an offset.
     with pytest.raises(units.UnitSyntaxError):
         units.parse(text)
 
 
 @pytest.mark.parametrize("text", ["mCel", "Cel2", "glugs", "kg..m", "2 +"])
 def test_unreadable(text):
-    # A prefix or power on a scale with an offset has no meaning (common practice);
-    # the rest is neither UCUM nor a spelling pint knows.
+    # Neither UCUM nor a spelling pint knows (the lenient reading refuses them too).
     with pytest.raises(units.UnitSyntaxError):
         units.read(text)
 
