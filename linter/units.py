@@ -104,6 +104,9 @@ _STOP = set("./(){}")
 # What the lenient (pint) reading accepts: letters, digits, spaces and arithmetic; pint
 # evaluates expressions, so anything else is refused before it gets there.
 _LENIENT = re.compile(r"^[A-Za-z_µμ°Ω0-9 .*/^()\-²³]{1,64}$")
+# Blanks around an operator change nothing a reader could mean ("m3 / h"); elsewhere
+# ("kg m") they are not UCUM and are left to the lenient reading.
+_OPERATOR_SPACE = re.compile(r"\s*([./()])\s*")
 _STRAY_DOT = re.compile(r"(?<!\d)\.|\.(?!\d)")  # pint reads '.' only inside numbers
 
 
@@ -281,7 +284,7 @@ def read(text: str) -> Reading:
     """Read a unit text with pint: as UCUM, else leniently; raises UnitSyntaxError."""
     text = text.strip()
     try:
-        code = parse(text)
+        code = parse(_OPERATOR_SPACE.sub(r"\1", text))
     except UnitSyntaxError as exc:
         return _lenient(text, exc)
     ureg = registry()

@@ -120,7 +120,7 @@ def test_a_temperature_in_a_rate_is_an_interval():
 
 @pytest.mark.parametrize("old,new", [
     ("m", "meter"), ("L", "l"), ("kW.h", "kWh"), ("L", "dm3"), ("Cel", "degC"),
-    ("s-1", "Hz"), ("m3", "m^3"), ("kg/(m.s2)", "Pa"), ("10*3", "1000"),
+    ("s-1", "Hz"), ("m3", "m^3"), ("kg/(m.s2)", "Pa"), ("10*3", "1000"), ("m3/h", "m3 / h"),
 ])
 def test_same_unit_spelled_differently(old, new):
     # UCUM for the codes; the second spellings are read leniently (common practice).
