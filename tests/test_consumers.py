@@ -103,6 +103,12 @@ BAD = {
     "empty reads": ("consumers:\n  - {name: a, contact: a@example.org, reads: []}\n", 2, "empty list"),
     "not a mapping": ("- a\n", 1, "must be a mapping"),
     "empty file": ("", 1, "registry is empty"),
+    "unknown top-level key": ("x-lists: &f [a]\nconsumer: []\n", 2, "unknown key 'consumer' (known: consumers, or keys"),
+    "alias bomb": ("a: &a [x, x, x, x, x, x, x, x, x, x]\n"
+                   + "".join(f"{n}: &{n} [{', '.join(['*' + p] * 10)}]\n" for p, n in zip("abcdef", "bcdefg"))
+                   + "consumers: *g\n", 1, "expands to more than 100000 values"),
+    "self-reference": ("consumers: &a [*a]\n", 1, "refers to itself"),
+    "deep nesting": ("consumers: " + "[" * 1200 + "]" * 1200 + "\n", None, "nested too deeply"),
 }
 
 
@@ -114,6 +120,13 @@ def test_bad_registries_are_one_line_errors_with_a_line(tmp_path, case):
     assert caught.value.line == line, str(caught.value)
     assert words in str(caught.value)
     assert "\n" not in str(caught.value)
+
+
+def test_anchors_can_share_field_lists(tmp_path):
+    registry = consumers.load(write(tmp_path, "x-meter: &meter [meter_id, volume]\nconsumers:\n"
+                                    "  - {name: a, contact: a@example.org, reads: [{schema: s, fields: *meter}]}\n"
+                                    "  - {name: b, contact: b@example.org, reads: [{schema: s, fields: *meter}]}\n"))
+    assert [[p.text for p in c.reads[0].fields] for c in registry.consumers] == [["meter_id", "volume"]] * 2
 
 
 def test_an_error_names_the_entry(tmp_path):
