@@ -152,7 +152,7 @@ def assess(consumer: Consumer, comparisons: Iterable[tuple[Comparison, Mapping, 
     hits: dict[int, Finding] = {}
     stale, unmatched = [], []
     for read in consumer.reads:
-        matched = False
+        matched, old_paths = False, None
         for comparison, roots, numbered in comparisons:
             scope = _scope(read, comparison, roots, numbered)
             if scope is None:
@@ -161,12 +161,14 @@ def assess(consumer: Consumer, comparisons: Iterable[tuple[Comparison, Mapping, 
             for i, f in scope.findings:
                 if read.fields is None or any(p.overlaps(f.path) for p in read.fields):
                     hits[i] = f
-            if read.fields is not None and scope.old_paths is not None:
-                for pattern in read.fields:
-                    if not any(pattern.covers(p) for p in scope.old_paths):
-                        stale.append(Stale(consumer.name, read.schema, pattern.text))
+            if scope.old_paths is not None:
+                old_paths = (old_paths or set()) | scope.old_paths
         if not matched:
             unmatched.append(read.schema)
+        elif read.fields is not None and old_paths is not None:
+            # Stale: nothing the read matched in OLD (every file, for a glob) has the field.
+            stale += [Stale(consumer.name, read.schema, pattern.text) for pattern in read.fields
+                      if not any(pattern.covers(p) for p in old_paths)]
     order = sorted(hits)
     reasons = tuple(r for r in (_reason(i, hits[i], needs) for i in order) if r is not None)
     fields = tuple(dict.fromkeys(f"{hits[i].schema}:{hits[i].path}" if hits[i].path else hits[i].schema

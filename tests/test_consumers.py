@@ -223,6 +223,15 @@ def test_stale_fields_are_reported(tmp_path):
     assert not found[0].stale and not found[2].stale
 
 
+def test_a_glob_field_is_stale_only_when_no_matched_file_has_it(tmp_path):
+    registry = consumers.load(write(tmp_path, "consumers:\n  - {name: a, contact: a@example.org, "
+                                    "reads: [{schema: '**/*.avsc', fields: [meter_id, period, nowhere]}]}\n"))
+    billing = {"utility.billing.BillingPeriod": frozenset({"period", "consumption"})}
+    found = consumers.impacts([comparison(), comparison(old="v1/b.avsc", new="v2/b.avsc", fields=billing)],
+                              registry, "backward")
+    assert [s.field for s in found[0].stale] == ["nowhere"]
+
+
 def test_reads_that_match_nothing_are_listed(registry):
     found = consumers.impacts([comparison(old="a/leak_alert.json", new="b/leak_alert.json", fields={})],
                               registry, "backward")
