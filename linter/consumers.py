@@ -125,17 +125,15 @@ class _Scope:
 
 
 def _scope(read: Read, comparison: Comparison, roots, numbered) -> _Scope | None:
-    if read.by_file:
-        if not (glob_matches(read.schema, comparison.old) or glob_matches(read.schema, comparison.new)):
-            return None
-        paths = set().union(*roots.values()) if roots else None
-        return _Scope(list(numbered), paths)
+    # A type's name first: a JSON Schema's $id may be a URL, which also reads as a glob.
     in_old = read.schema in roots
     picked = [(i, f) for i, f in numbered
               if f.schema == read.schema or (in_old and _about_the_file(f, comparison, roots))]
-    if not in_old and not picked:
-        return None
-    return _Scope(picked, set(roots[read.schema]) if in_old else None)
+    if in_old or picked:
+        return _Scope(picked, set(roots[read.schema]) if in_old else None)
+    if read.by_file and (glob_matches(read.schema, comparison.old) or glob_matches(read.schema, comparison.new)):
+        return _Scope(list(numbered), set().union(*roots.values()) if roots else None)
+    return None
 
 
 def _reason(index: int, finding: Finding, needs: str) -> Reason | None:

@@ -232,6 +232,16 @@ def test_a_glob_field_is_stale_only_when_no_matched_file_has_it(tmp_path):
     assert [s.field for s in found[0].stale] == ["nowhere"]
 
 
+def test_a_type_named_by_a_url_is_read_by_name(tmp_path):
+    url = "https://example.org/schemas/service-notice.json"
+    registry = consumers.load(write(tmp_path, f"consumers:\n  - {{name: a, contact: a@example.org, "
+                                    f"reads: [{{schema: '{url}', fields: [starts]}}]}}\n"))
+    notice = comparison(finding("starts", Compat.BACKWARD, schema=url), finding("ends", Compat.BREAKING, schema=url),
+                        old="v1/notice.json", new="v2/notice.json", fields={url: frozenset({"starts", "ends"})})
+    found = consumers.impacts([notice], registry, "backward")
+    assert found[0].findings == (0,) and found[0].verdict == "informed" and not found[0].stale
+
+
 def test_reads_that_match_nothing_are_listed(registry):
     found = consumers.impacts([comparison(old="a/leak_alert.json", new="b/leak_alert.json", fields={})],
                               registry, "backward")
