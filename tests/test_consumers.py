@@ -3,6 +3,7 @@
 Impact is tested on synthetic findings, so it does not depend on any format adapter;
 the end-to-end checks on schemas_example/ are in tests/test_announce.py.
 """
+import json
 from pathlib import Path
 
 import pytest
@@ -320,3 +321,28 @@ def test_stricter_needs_are_told_at_least_as_often(found, fields):
         segs = path.split(".") if path else []
         on_branch = any(segs[:len(f.split("."))] == f.split(".")[:len(segs)] for f in fields)
         assert (i in by["full-some"].findings) == on_branch
+
+
+def test_the_shipped_registry_schema_is_a_valid_schema_and_the_example_passes_it():
+    import yaml
+    from jsonschema import Draft202012Validator
+
+    from linter.registry import SCHEMA
+
+    schema = json.loads(SCHEMA.read_text())
+    Draft202012Validator.check_schema(schema)
+    example = Path(__file__).resolve().parent.parent / "schemas_example" / "consumers.yaml"
+    errors = list(Draft202012Validator(schema).iter_errors(yaml.safe_load(example.read_text())))
+    assert not errors, errors[0].message
+
+
+def test_text_report_says_when_nobody_must_be_told(registry):
+    import io
+
+    from linter.report import text
+
+    report = consumers.apply(Report(mode="backward", comparisons=[comparison(finding("volume"))]), registry)
+    out = io.StringIO()
+    text.render(report, out, color=False)
+    assert out.getvalue().rstrip().endswith(
+        "No consumer must be told\nInformed: billing, data-archive\nUnaffected: leak-detection, network-planning")
