@@ -214,3 +214,62 @@ def test_example_consumers(validate_report):
                 for r in entry["reasons"]}
         assert told == fields
     assert not any("stale" in w for w in data.get("warnings", [])), "the example registry names real fields"
+
+
+def run_tree(tmp_path, name, old, new, registry):
+    for side, text in (("v1", old), ("v2", new)):
+        (tmp_path / side).mkdir()
+        (tmp_path / side / name).write_text(text)
+    (tmp_path / "consumers.yaml").write_text(registry)
+    import linter
+
+    return linter.check(tmp_path / "v1", tmp_path / "v2", consumers=tmp_path / "consumers.yaml")
+
+
+PUMP = """syntax = "proto3";
+package utility.telemetry;
+message PumpStatus {
+  string pump_id = 1;
+  // @unit: %s
+  double outlet_pressure = 2;
+  Motor motor = 3;
+}
+message Motor { int32 rpm = 1; %s }
+"""
+
+
+def test_end_to_end_on_protobuf_files(tmp_path, validate_report):
+    pytest.importorskip("linter.formats.protobuf")
+    report = run_tree(tmp_path, "pump_status.proto", PUMP % ("kPa", "float temperature = 2;"), PUMP % ("bar", ""), """\
+consumers:
+  - {name: planning, contact: p@example.org, reads: [{schema: utility.telemetry.PumpStatus, fields: [motor.rpm]}]}
+  - {name: ops, contact: o@example.org, reads: [{schema: utility.telemetry.PumpStatus, fields: [outlet_pressure, motor.temp]}]}
+  - {name: motors, contact: m@example.org, needs: full, reads: [{schema: "**/pump_status.proto", fields: ["motor.*"]}]}
+""")
+    data = validate_report(report.to_json())
+    # the unit of outlet_pressure changed (semantic); motor.temperature was removed (a sibling of motor.rpm)
+    assert {c["name"]: c["verdict"] for c in data["consumers"]} == {
+        "planning": "unaffected", "ops": "must-be-told", "motors": "informed"}
+    assert data["consumers"][1]["stale"] == [{"schema": "utility.telemetry.PumpStatus", "field": "motor.temp"}]
+
+
+NOTICE = """{"$schema": "https://json-schema.org/draft/2020-12/schema", "$id": "urn:utility:service-notice",
+ "type": "object", "required": ["district", "starts"%s],
+ "properties": {"district": {"type": "string"}, "starts": {"type": "string"}, "reason": {"type": "string"},
+   "duration": {"type": "integer", "x-unit": "%s"}, "contact": {"type": "object", "properties": {"phone": {"type": "string"}}}}}
+"""
+
+
+def test_end_to_end_on_json_schema_files(tmp_path, validate_report):
+    pytest.importorskip("linter.formats.jsonschema")
+    report = run_tree(tmp_path, "service_notice.json", NOTICE % ("", "min"), NOTICE % (', "reason"', "h"), """\
+consumers:
+  - {name: portal, contact: p@example.org, reads: [{schema: "**/service_notice.json"}]}
+  - {name: sms, contact: s@example.org, reads: [{schema: "urn:utility:service-notice", fields: [district, contact.phone]}]}
+  - {name: planner, contact: pl@example.org, needs: forward, reads: [{schema: "urn:utility:service-notice", fields: [reason]}]}
+  - {name: rota, contact: r@example.org, reads: [{schema: "urn:utility:service-notice", fields: [duration]}]}
+""")
+    data = validate_report(report.to_json())
+    # reason became required (breaks backward only); the unit of duration changed (semantic)
+    assert {c["name"]: c["verdict"] for c in data["consumers"]} == {
+        "portal": "must-be-told", "sms": "unaffected", "planner": "informed", "rota": "must-be-told"}
