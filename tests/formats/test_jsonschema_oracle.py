@@ -14,7 +14,7 @@ from functools import lru_cache
 from pathlib import Path
 
 import pytest
-from hypothesis import HealthCheck, assume, find, given, settings, strategies as st
+from hypothesis import HealthCheck, Phase, assume, find, given, settings, strategies as st
 from hypothesis.errors import NoSuchExample, Unsatisfiable
 
 import linter
@@ -193,6 +193,9 @@ def test_compatible_directions_accept_every_instance(label, direction, data):
     assert validator(dst).is_valid(instance), f"{label}: evolint calls {direction} compatible, but {instance!r} fails"
 
 
+WITNESS_TRIES = settings.default.max_examples  # 40 in the ci profile, 600 in slow
+
+
 def test_breaking_directions_have_witnesses_mostly():
     found, tried, missed = 0, 0, []
     with warnings.catch_warnings():
@@ -206,7 +209,8 @@ def test_breaking_directions_have_witnesses_mostly():
             tried += 1
             try:
                 find(strat, lambda x: v_src.is_valid(x) and not v_dst.is_valid(x),
-                     settings=settings(max_examples=150, deadline=None, database=None,
+                     settings=settings(max_examples=WITNESS_TRIES, deadline=None, database=None,
+                                       phases=(Phase.generate,),  # a witness, not a minimal one
                                        suppress_health_check=list(HealthCheck)))
                 found += 1
             except (NoSuchExample, Unsatisfiable):
