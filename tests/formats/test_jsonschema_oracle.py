@@ -193,14 +193,16 @@ def test_compatible_directions_accept_every_instance(label, direction, data):
     assert validator(dst).is_valid(instance), f"{label}: evolint calls {direction} compatible, but {instance!r} fails"
 
 
-WITNESS_TRIES = min(settings.default.max_examples, 25) if settings.default.max_examples < 100 else 300
+SLOW = settings.default.max_examples >= 100  # EVOLINT_HYPOTHESIS=slow
+WITNESS_TRIES = 300 if SLOW else 25
 
 
 def test_breaking_directions_have_witnesses_mostly():
     found, tried, missed = 0, 0, []
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        for label, direction in BREAKING:
+        # CI measures every other breaking direction; the slow profile measures all.
+        for label, direction in BREAKING if SLOW else BREAKING[::2]:
             src, dst = sides(label, direction)
             strat = strategy(src)
             if strat is None:
@@ -217,7 +219,7 @@ def test_breaking_directions_have_witnesses_mostly():
                 missed.append(f"{label}-{direction}")
     rate = found / tried
     print(f"\nwitness rate: {found}/{tried} = {rate:.0%}; none found for: {', '.join(missed)}")
-    assert tried >= 40
+    assert tried >= 40 if SLOW else tried >= 20
     # Undecided findings and semantic-free imprecision leave some without a witness.
     assert rate >= 0.75, missed
 
