@@ -216,18 +216,18 @@ def test_consumer_registry_is_loaded_safely(tmp_path):
 
 # --- deep nesting and recursive types ----------------------------------------------------
 
+# Deep documents are written as text: json.dumps itself recurses per level.
+
 def avro_nested_records(depth: int) -> str:
-    node: dict = {"name": "volume", "type": "double"}
-    for i in range(depth):
-        node = {"name": f"level_{i}", "type": {"type": "record", "name": f"Level{i}", "fields": [node]}}
-    return json.dumps({"type": "record", "name": "MeterReading", "fields": [node]})
+    head = "".join(f'{{"name": "level_{i}", "type": {{"type": "record", "name": "Level{i}", "fields": ['
+                   for i in range(depth))
+    core = '{"name": "volume", "type": "double"}'
+    return f'{{"type": "record", "name": "MeterReading", "fields": [{head}{core}{"]}}" * depth}]}}'
 
 
 def avro_nested_arrays(depth: int) -> str:
-    node: object = "double"
-    for _ in range(depth):
-        node = {"type": "array", "items": node}
-    return json.dumps({"type": "record", "name": "MeterReading", "fields": [{"name": "v", "type": node}]})
+    node = '{"type": "array", "items": ' * depth + '"double"' + "}" * depth
+    return f'{{"type": "record", "name": "MeterReading", "fields": [{{"name": "v", "type": {node}}}]}}'
 
 
 def avro_chain(depth: int) -> str:
@@ -239,10 +239,10 @@ def avro_chain(depth: int) -> str:
 
 
 def jsonschema_nested(depth: int) -> str:
-    node: dict = {"type": "number"}
-    for i in range(depth):
-        node = {"type": "object", "properties": {f"level_{i}": node}}
-    return json.dumps({**JSONSCHEMA_OLD, "properties": {"root": node}})
+    head = "".join(f'{{"type": "object", "properties": {{"level_{i}": ' for i in range(depth))
+    node = head + '{"type": "number"}' + "}}" * depth
+    return ('{"$schema": "https://json-schema.org/draft/2020-12/schema", "$id": "urn:utility:service-notice",'
+            f' "type": "object", "properties": {{"root": {node}}}}}')
 
 
 def jsonschema_chain(depth: int) -> str:
