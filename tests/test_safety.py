@@ -459,3 +459,14 @@ def test_read_only_checkout_is_left_untouched(readonly_tree):
     after = snapshot(tree)
     assert after == before
     assert not [p for p in after if "__pycache__" in p or p.endswith((".pyc", ".tmp", ".pb"))]
+
+
+# --- format detection on any JSON value --------------------------------------------------
+
+@pytest.mark.parametrize("doc", [{"type": []}, {"type": {"a": 1}, "name": "x"}, [{"type": ["record"]}],
+                                 {"type": None}, [], "record", 12])
+def test_format_detection_takes_any_json_value(doc):
+    # Found by the fuzz suite: {"type": []} in a .json file raised TypeError (unhashable list).
+    from linter.formats import looks_like_avro
+
+    assert looks_like_avro(doc) is False
