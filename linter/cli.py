@@ -15,6 +15,7 @@ from .model import MODES
 
 OUTPUTS = ("text", "json")
 FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
+ENCODINGS = ("json",)
 
 
 class Failed(Exception):
@@ -42,16 +43,20 @@ def cli(ctx, debug):
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
               help="Add a Protobuf import path (repeatable).")
+@click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
+              help="Also count this encoding's effect toward the verdict (Protobuf: json, the proto3 "
+                   "JSON mapping; the binary encoding always counts). Repeatable.")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
 @click.option("--consumers", type=click.Path(), default=None,
               help="Consumer registry (YAML): say who reads what changed and who must be told.")
-def check(old, new, mode, format_, include, output, consumers):
+def check(old, new, mode, format_, include, encodings, output, consumers):
     """Compare OLD with NEW (two files, or two directories paired by relative path)."""
     from .api import check as run_check
     from .report import render
 
-    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
+    report = run_check(old, new, mode=mode, format=format_, include=include, encodings=encodings,
+                       consumers=consumers)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)
 
