@@ -106,6 +106,12 @@ def main(argv=None) -> None:
     except InputError as exc:
         click.echo(f"evolint: error: {exc}", err=True)
         status = 2
+    except RecursionError:
+        # Absurdly deep input (nesting or chains of types beyond the interpreter's limit) is bad
+        # input, not a crash: refuse it in one line.
+        click.echo("evolint: error: the schemas nest types too deeply for evolint to compare; "
+                   "flatten the nesting or split the file", err=True)
+        status = 2
     except click.exceptions.Abort:
         click.echo("evolint: aborted", err=True)
         status = 2
