@@ -132,13 +132,21 @@ def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
           include: Iterable[str] = (), policy: engine.Policy | None = None,
-          options: Options | None = None) -> Report:
-    """Compare OLD with NEW (two files or two directories) and classify every change."""
+          options: Options | None = None, witness: bool = False) -> Report:
+    """Compare OLD with NEW (two files or two directories) and classify every change.
+
+    ``witness=True`` attaches to each finding that breaks a direction a datum showing it,
+    confirmed by running the real codec (``linter.witness``).
+    """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
     policy = policy or engine.Policy(mode=mode)
     options = options or Options(include=tuple(include))
     comparisons = compare(pairs(old, new), policy, format=format, options=options)
+    if witness:
+        from .witness import attach
+
+        comparisons = attach(comparisons, options)
     return Report(mode=policy.mode, comparisons=comparisons)
 
 

@@ -44,13 +44,39 @@ def cli(ctx, debug):
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
-def check(old, new, mode, format_, include, output):
+@click.option("--witness", is_flag=True,
+              help="Show, for each finding that breaks a direction, a datum that demonstrates it "
+                   "(confirmed by running the codec).")
+def check(old, new, mode, format_, include, output, witness):
     """Compare OLD with NEW (two files, or two directories paired by relative path)."""
     from .api import check as run_check
     from .report import render
 
-    report = run_check(old, new, mode=mode, format=format_, include=include)
+    report = run_check(old, new, mode=mode, format=format_, include=include, witness=witness)
     render(output, report, sys.stdout)
+    raise Failed(report.exit_code)
+
+
+@cli.command()
+@click.argument("old", type=click.Path())
+@click.argument("new", type=click.Path())
+@click.option("--samples", type=click.IntRange(1, 100_000), default=200, show_default=True,
+              help="Random data per direction and root type.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Seed of the random data.")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
+              help="Report format.")
+def verify(old, new, samples, seed, format_, include, output):
+    """Test the static verdict of OLD -> NEW against the real codecs with random data."""
+    from .verify import render as render_verify
+    from .verify import verify as run_verify
+
+    report = run_verify(old, new, samples=samples, seed=seed, format=format_, include=include,
+                        progress=sys.stderr.isatty())
+    render_verify(report, output, sys.stdout)
     raise Failed(report.exit_code)
 
 
