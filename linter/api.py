@@ -126,28 +126,40 @@ def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None
         new_schema = module.load(pair.new, pair.new_display, options)
         changes = module.diff(old_schema, new_schema)
         findings = engine.judge(changes, cat, policy)
-        comparisons.append(Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings)))
+        comparisons.append(Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings),
+                                      old_fields={r: frozenset(p) for r, p in old_schema.fields.items()}))
     return comparisons
 
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
           include: Iterable[str] = (), policy: engine.Policy | None = None,
-          options: Options | None = None, witness: bool = False) -> Report:
+          options: Options | None = None, consumers: str | Path | None = None,
+          witness: bool = False) -> Report:
     """Compare OLD with NEW (two files or two directories) and classify every change.
 
-    ``witness=True`` attaches to each finding that breaks a direction a datum showing it,
-    confirmed by running the real codec (``linter.witness``).
+    ``consumers`` names a consumer registry (YAML): the report then says which consumers
+    read what changed and which of them must be told. ``witness=True`` attaches to each
+    finding that breaks a direction a datum showing it, confirmed by running the real
+    codec (``linter.witness``).
     """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
     policy = policy or engine.Policy(mode=mode)
     options = options or Options(include=tuple(include))
+    registry = None
+    if consumers is not None:
+        from . import consumers as impact
+
+        registry = impact.load(consumers)  # a bad registry fails before any schema is read
     comparisons = compare(pairs(old, new), policy, format=format, options=options)
     if witness:
         from .witness import attach
 
         comparisons = attach(comparisons, options)
-    return Report(mode=policy.mode, comparisons=comparisons)
+    report = Report(mode=policy.mode, comparisons=comparisons)
+    if registry is not None:
+        impact.apply(report, registry, warn_unmatched=Path(old).is_dir())
+    return report
 
 
 def load(path: str | Path, *, format: str | None = None, options: Options | None = None) -> Schema:

@@ -44,16 +44,42 @@ def cli(ctx, debug):
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
+@click.option("--consumers", type=click.Path(), default=None,
+              help="Consumer registry (YAML): say who reads what changed and who must be told.")
 @click.option("--witness", is_flag=True,
               help="Show, for each finding that breaks a direction, a datum that demonstrates it "
                    "(confirmed by running the codec).")
-def check(old, new, mode, format_, include, output, witness):
+def check(old, new, mode, format_, include, output, consumers, witness):
     """Compare OLD with NEW (two files, or two directories paired by relative path)."""
     from .api import check as run_check
     from .report import render
 
-    report = run_check(old, new, mode=mode, format=format_, include=include, witness=witness)
+    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers,
+                       witness=witness)
     render(output, report, sys.stdout)
+    raise Failed(report.exit_code)
+
+
+@cli.command()
+@click.argument("old", type=click.Path())
+@click.argument("new", type=click.Path())
+@click.option("--consumers", type=click.Path(), required=True,
+              help="Consumer registry (YAML) naming who reads which fields.")
+@click.option("--mode", type=click.Choice(MODES), default="backward", show_default=True,
+              help="The compatibility the change must keep (a consumer's own 'needs' wins).")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(("markdown", "json")), default="markdown", show_default=True,
+              help="Markdown to paste, or the same content as JSON.")
+def announce(old, new, consumers, mode, format_, include, output):
+    """Write the announcement of a change: who must be told, and what changes for them."""
+    from .announce import render as render_announcement
+    from .api import check as run_check
+
+    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
+    render_announcement(report, sys.stdout, output)
     raise Failed(report.exit_code)
 
 
@@ -67,7 +93,7 @@ def check(old, new, mode, format_, include, output, witness):
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
               help="Add a Protobuf import path (repeatable).")
-@click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
+@click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
               help="Report format.")
 def verify(old, new, samples, seed, format_, include, output):
     """Test the static verdict of OLD -> NEW against the real codecs with random data."""
