@@ -32,7 +32,9 @@ class Result:
     samples: int = 0
     failures: int = 0
     skipped: int = 0
+    departures: int = 0        # failures of the codec where the specification says data resolve
     example: Trial | None = None
+    departure: str | None = None
 
     @property
     def verdict(self) -> str:
@@ -44,7 +46,9 @@ class Result:
         out = {"old": self.old, "new": self.new, "format": self.format, "schema": self.schema,
                "direction": self.direction, "static": "compatible" if self.static_ok else "breaking",
                "samples": self.samples, "failures": self.failures, "skipped": self.skipped,
-               "verdict": self.verdict, "example": None}
+               "departures": self.departures, "verdict": self.verdict, "example": None}
+        if self.departure:
+            out["departure"] = self.departure
         if self.example is not None:
             out["example"] = {"datum": self.example.datum, "outcome": self.example.outcome}
         return out
@@ -115,7 +119,10 @@ def sample(module, pair, comparison: Comparison, root: str, direction: str, samp
             result.skipped += 1
         else:
             result.samples += 1
-            if trial.failed:
+            if trial.failed and trial.departure:
+                result.departures += 1
+                result.departure = result.departure or trial.departure
+            elif trial.failed:
                 result.failures += 1
                 result.example = result.example or trial
         if advance:
@@ -160,6 +167,9 @@ def render_text(report: VerifyReport, stream) -> None:
         console.print(f"  [{style}]{r.verdict:<9}[/] {r.direction:<8} [bold]{escape(r.schema)}[/]  "
                       f"[dim]{escape(r.old)} → {escape(r.new)}[/]  static {static}, "
                       f"{r.failures}/{r.samples} failed")
+        if r.departures:
+            console.print(f"            [dim]{r.departures} more failed where the codec departs from the "
+                          f"specification: {escape(r.departure)}[/]")
         if r.example is not None and (r.verdict == "bug" or not r.static_ok):
             console.print(f"            datum: {escape(json.dumps(r.example.datum, ensure_ascii=False, default=str))}")
             console.print(f"            {escape(r.example.outcome)}")

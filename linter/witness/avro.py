@@ -122,10 +122,17 @@ def _side(path: Path, display: str) -> Side:
     raw = parse_json(read_text(path, display), display)
     names: dict = {}
     try:
-        parsed = fa.parse_schema(raw, named_schemas=names)
         plain = fa.parse_schema(_strip_logical(raw), named_schemas={})
     except Exception as exc:  # noqa: BLE001 - fastavro raises several unrelated types
         raise InputError(f"not an Avro schema fastavro accepts: {exc}", display) from None
+    try:
+        parsed = fa.parse_schema(raw, named_schemas=names)
+    except Exception:  # noqa: BLE001
+        # fastavro refuses some invalid logical types (a decimal with scale > precision);
+        # the specification reads them as their underlying type (Logical Types).
+        names = {}
+        raw = _strip_logical(raw)
+        parsed = fa.parse_schema(raw, named_schemas=names)
     return Side(display, raw, parsed, plain, names)
 
 
@@ -337,6 +344,12 @@ def _press(wside: Side, rside: Side, rnode: Any, rng):
             return ("value", 1e39)  # beyond the largest float
         if kw == "bytes" and kr == "string":
             return ("value", b"\xff\xfe" + rng.randbytes(2))  # not UTF-8
+        wd, rd = _decimal(w), _decimal(r)
+        if wd and rd and wd != rd:
+            # As many digits as the writer's precision allows: more than a narrower reader holds.
+            unscaled = 10 ** wd[0] - 1
+            size = w.get("size") or (unscaled.bit_length() // 8 + 1)
+            return ("value", unscaled.to_bytes(size, "big", signed=True))
         return NOTHING
 
     return press
@@ -463,8 +476,13 @@ def run(writer: Side, reader: Side, root: str, datum: Any, encoding: str | None 
     try:
         read = fa.schemaless_reader(io.BytesIO(data), wroot[0], rroot[0])
     except Exception as exc:  # noqa: BLE001 - the decoder's error is the outcome
-        return Trial(shown, True, f"the reader fails: {type(exc).__name__}: {_one_line(exc)}", error=True)
-    diffs = changed(writer, wroot[0], written, read)
+        departure = None
+        if isinstance(exc, UnicodeDecodeError):
+            departure = ("fastavro fails on bytes that are not UTF-8 read as string; the Avro "
+                         "specification promotes bytes to string (Schema Resolution)")
+        return Trial(shown, True, f"the reader fails: {type(exc).__name__}: {_one_line(exc)}", error=True,
+                     departure=departure)
+    diffs = [d for d in changed(writer, wroot[0], written, read) if not _enum_default(reader, rroot[0], *d)]
     if diffs:
         path, w, r = diffs[0]
         return Trial(shown, True, f"{path or '(value)'} was written as {_show(w)} and read as {_show(r)}",
@@ -472,11 +490,54 @@ def run(writer: Side, reader: Side, root: str, datum: Any, encoding: str | None 
     return Trial(shown, False, "read back with every value kept")
 
 
+def _enum_default(reader: Side, rroot: Any, path: str, w: Any, r: Any) -> bool:
+    """A symbol the reader does not know, replaced by its enum's default (Schema Resolution)."""
+    node = node_at(reader, rroot, path)
+    for b in node if isinstance(node, list) else [node]:
+        b = reader.resolve(b)
+        if kind_of(b) == "enum" and "default" in b and w not in b["symbols"] and r == b["default"]:
+            return True
+    return False
+
+
+def _decimal(node: Any) -> tuple[int, int] | None:
+    if isinstance(node, dict) and node.get("logicalType") == "decimal":
+        return int(node.get("precision", 0)), int(node.get("scale", 0))
+    return None
+
+
+def _too_wide(reader: Side, rroot: Any, path: str, value: Any) -> str | None:
+    """Why a decoded decimal does not fit the reader's decimal(precision, scale), if it does not."""
+    spec = _decimal(node_at(reader, rroot, path))
+    if spec is None or not isinstance(value, decimal.Decimal):
+        return None
+    precision, scale = spec
+    unscaled = int(value.scaleb(scale).to_integral_value())
+    if len(str(abs(unscaled))) > precision:
+        return f"{value} has more digits than the reader's decimal({precision}, {scale}) holds"
+    return None
+
+
+def _physical(side: Side, node: Any) -> Any:
+    node = side.resolve(node)
+    return kind_of(node), (node.get("size") if isinstance(node, dict) else None)
+
+
 def reinterpret(finding, writer: Side, reader: Side, rng) -> Trial | None:
-    """The same bytes read with the reader schema as their own: what a reader assuming it sees."""
+    """The same bytes read with the reader schema as their own: what a reader assuming it sees.
+
+    Only where the finding's node has the same physical type on both sides (a change of
+    logical type or of its parameters), with only this change applied to the reader.
+    """
     fa = _fastavro()
+    alone = isolate(finding, writer, reader)
+    if alone is not None:
+        reader = alone
     wroot, rroot = writer.root(finding.schema), reader.root(finding.schema)
     if wroot is None or rroot is None:
+        return None
+    wnode, rnode = node_at(writer, wroot[0], finding.path), node_at(reader, rroot[0], finding.path)
+    if wnode is None or rnode is None or _physical(writer, wnode) != _physical(reader, rnode):
         return None
     for datum in targeted(finding, writer, reader, rng):
         data = encode(writer, finding.schema, datum)
@@ -490,11 +551,27 @@ def reinterpret(finding, writer: Side, reader: Side, rng) -> Trial | None:
                          error=True)
         diffs = [d for d in changed(writer, wroot[0], meant, seen)
                  if finding.path == "" or d[0] == finding.path or d[0].startswith(finding.path + ".")]
+        wide = _too_wide(reader, rroot[0], finding.path, _at(seen, finding.path))
         if diffs:
             path, w, r = diffs[0]
             return Trial(jsonable(datum), True, f"{path} means {_show(w)} to the writer and "
-                         f"{_show(r)} to a reader of the same bytes with the other schema", (path,))
+                         f"{_show(r)} to a reader of the same bytes with the other schema"
+                         + (f" ({wide})" if wide else ""), (path,))
+        if wide:
+            return Trial(jsonable(datum), True, f"fastavro reads it without complaint, but at {finding.path} "
+                         f"{wide}", (finding.path,))
     return None
+
+
+def _at(value: Any, path: str) -> Any:
+    """The value at a dotted path of a decoded datum (the first element through arrays), or None."""
+    for seg in path.split(".") if path else ():
+        while isinstance(value, list) and value:
+            value = value[0]
+        if not isinstance(value, dict) or seg not in value:
+            return None
+        value = value[seg]
+    return value
 
 
 def _one_line(exc: Exception) -> str:
@@ -598,6 +675,15 @@ def _dedupe(node: Any, seen: dict) -> Any:
     return out
 
 
+def _unpaired(wrec: dict, rrec: dict | None) -> bool:
+    """Whether both records hold fields the other cannot match by name or alias."""
+    if rrec is None:
+        return True
+    w_only = [f for f in wrec["fields"] if _find(rrec["fields"], f["name"]) is None]
+    r_only = [f for f in rrec["fields"] if _find(wrec["fields"], f["name"]) is None]
+    return bool(w_only and r_only)
+
+
 def isolate(finding, writer: Side, reader: Side) -> Side | None:
     """The writer schema with only the finding's node taken from the reader schema, or None."""
     import copy
@@ -624,6 +710,8 @@ def isolate(finding, writer: Side, reader: Side) -> Side | None:
             if i == len(segs) - 1:
                 if wrec is None:
                     return None
+                if (wi is None) != (ri is None) and _unpaired(wrec, rrec):
+                    return None  # perhaps a rename: which field is its counterpart is unknown
                 if wi is not None and ri is not None:
                     wrec["fields"][wi] = copy.deepcopy(rrec["fields"][ri])
                 elif wi is not None:
