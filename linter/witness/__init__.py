@@ -154,6 +154,10 @@ def witness_for(finding: Finding, fmt: str, pair) -> Witness | None:
     last = None
     for direction, encoding in attempts:
         writer, reader = pair.sides(direction)
+        reason = module.unshowable(finding, writer, reader) if hasattr(module, "unshowable") else None
+        if reason:
+            last = last or Witness(direction, None, writer.display, reader.display, reason, False, encoding)
+            continue
         hit, first = search(module, finding, writer, reader, direction, encoding)
         if hit is None and encoding is None and hasattr(module, "reinterpret"):
             # A lenient codec reads the data; the reader's own schema may still read the
@@ -165,8 +169,8 @@ def witness_for(finding: Finding, fmt: str, pair) -> Witness | None:
         if last is None:
             tried = first.datum if first is not None else None
             last = Witness(direction, tried, writer.display, reader.display,
-                           "no datum written with the writer schema failed to read or changed value "
-                           f"at {finding.path or finding.schema}", False, encoding)
+                           "no datum the writer schema produces was rejected by the reader or came back "
+                           f"changed at {finding.path or finding.schema}", False, encoding)
     return last
 
 
