@@ -154,13 +154,15 @@ def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
           include: Iterable[str] = (), encodings: Iterable[str] = (),
           policy: engine.Policy | None = None, options: Options | None = None,
-          consumers: str | Path | None = None) -> Report:
+          consumers: str | Path | None = None, witness: bool = False) -> Report:
     """Compare OLD with NEW (two files or two directories) and classify every change.
 
     ``encodings`` names further encodings whose effect counts toward the verdict (Protobuf:
     ``"json"``, the proto3 JSON mapping); the binary encoding always counts.
     ``consumers`` names a consumer registry (YAML): the report then says which consumers
-    read what changed and which of them must be told.
+    read what changed and which of them must be told. ``witness=True`` attaches to each
+    finding that breaks a direction a datum showing it, confirmed by running the real
+    codec (``linter.witness``).
     """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
@@ -173,6 +175,10 @@ def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: s
         registry = impact.load(consumers)  # a bad registry fails before any schema is read
     roots = (Path(old), Path(new)) if Path(old).is_dir() and Path(new).is_dir() else None
     comparisons = compare(pairs(old, new), policy, format=format, options=options, roots=roots)
+    if witness:
+        from .witness import attach
+
+        comparisons = attach(comparisons, options)
     settings = {"encodings": list(policy.encodings)} if policy.encodings else {}
     report = Report(mode=policy.mode, comparisons=comparisons, settings=settings)
     if registry is not None:
