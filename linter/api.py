@@ -7,7 +7,7 @@ from __future__ import annotations
 import os
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Iterable
+from typing import Any, Callable, Iterable
 
 from . import __version__, catalogue, engine
 from .errors import InputError, UsageError
@@ -34,7 +34,9 @@ class Report:
 
     @property
     def passed(self) -> bool:
-        return self.compatibility.keeps(self.mode) and not any(f.severity == "error" for f in self.findings)
+        # A comparison may carry its own mode (configured per path); otherwise the run's.
+        kept = all(c.compatibility.keeps(c.mode or self.mode) for c in self.comparisons)
+        return kept and not any(f.severity == "error" for f in self.findings)
 
     @property
     def exit_code(self) -> int:
@@ -102,44 +104,57 @@ def _format_of(path: Path, display: str, forced: str | None) -> str:
     return forced or detect(path, display)
 
 
-def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None = None,
-            options: Options | None = None) -> list[Comparison]:
-    options = options or Options()
+def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: Options,
+                old_options: Options | None = None) -> Comparison:
+    """Compare one pair of files under ``policy`` (``old_options`` for the OLD side, if it differs)."""
     cat = catalogue.load()
-    comparisons = []
-    for pair in pairs_:
-        if pair.old is None or pair.new is None:
-            present = pair.new if pair.old is None else pair.old
-            display = pair.new_display if pair.old is None else pair.old_display
-            fmt = _format_of(present, display, format)
-            kind = "schema-file-added" if pair.old is None else "schema-file-removed"
-            findings = engine.judge([_file_change(kind, fmt, pair)], cat, policy)
-            comparisons.append(Comparison(pair.old_display, pair.new_display, fmt, tuple(findings)))
-            continue
-        fmt_old = _format_of(pair.old, pair.old_display, format)
-        fmt_new = _format_of(pair.new, pair.new_display, format)
-        if fmt_old != fmt_new:
-            raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
-                             pair.new_display)
-        module = adapter(fmt_old)
-        old_schema = module.load(pair.old, pair.old_display, options)
-        new_schema = module.load(pair.new, pair.new_display, options)
-        changes = module.diff(old_schema, new_schema)
-        findings = engine.judge(changes, cat, policy)
-        comparisons.append(Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings)))
-    return comparisons
+    if pair.old is None or pair.new is None:
+        present = pair.new if pair.old is None else pair.old
+        display = pair.new_display if pair.old is None else pair.old_display
+        fmt = _format_of(present, display, format)
+        kind = "schema-file-added" if pair.old is None else "schema-file-removed"
+        findings = engine.judge([_file_change(kind, fmt, pair)], cat, policy)
+        return Comparison(pair.old_display, pair.new_display, fmt, tuple(findings), policy.mode)
+    fmt_old = _format_of(pair.old, pair.old_display, format)
+    fmt_new = _format_of(pair.new, pair.new_display, format)
+    if fmt_old != fmt_new:
+        raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
+                         pair.new_display)
+    module = adapter(fmt_old)
+    old_schema = module.load(pair.old, pair.old_display, old_options or options)
+    new_schema = module.load(pair.new, pair.new_display, options)
+    changes = module.diff(old_schema, new_schema)
+    findings = engine.judge(changes, cat, policy)
+    return Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings), policy.mode)
+
+
+def compare(pairs_: Iterable[Pair], policy: engine.Policy | Callable[[Pair], engine.Policy], *,
+            format: str | None = None, options: Options | None = None,
+            old_options: Options | None = None, jobs: int | None = None) -> list[Comparison]:
+    """Compare every pair, in order; ``policy`` may be a function of the pair (per-path settings).
+
+    Many pairs are compared on several processes (linter/pool.py); the result is the same.
+    """
+    from .pool import run_all
+
+    options = options or Options()
+    tasks = [(pair, policy(pair) if callable(policy) else policy) for pair in pairs_]
+    return run_all(compare_one, tasks, format, options, old_options, jobs=jobs)
 
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
-          include: Iterable[str] = (), policy: engine.Policy | None = None,
-          options: Options | None = None) -> Report:
-    """Compare OLD with NEW (two files or two directories) and classify every change."""
+          include: Iterable[str] = (), policy: engine.Policy | Callable[[Pair], engine.Policy] | None = None,
+          options: Options | None = None, jobs: int | None = None) -> Report:
+    """Compare OLD with NEW (two files or two directories) and classify every change.
+
+    ``policy`` may be a function of each pair (settings configured per path).
+    """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
     policy = policy or engine.Policy(mode=mode)
     options = options or Options(include=tuple(include))
-    comparisons = compare(pairs(old, new), policy, format=format, options=options)
-    return Report(mode=policy.mode, comparisons=comparisons)
+    comparisons = compare(pairs(old, new), policy, format=format, options=options, jobs=jobs)
+    return Report(mode=policy.mode if isinstance(policy, engine.Policy) else mode, comparisons=comparisons)
 
 
 def load(path: str | Path, *, format: str | None = None, options: Options | None = None) -> Schema:

@@ -13,7 +13,7 @@ from . import __version__
 from .errors import InputError
 from .model import MODES
 
-OUTPUTS = ("text", "json")
+OUTPUTS = ("text", "json", "sarif", "markdown", "annotations")
 FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
 
 
@@ -34,22 +34,30 @@ def cli(ctx, debug):
 
 
 @cli.command()
-@click.argument("old", type=click.Path())
-@click.argument("new", type=click.Path())
-@click.option("--mode", type=click.Choice(MODES), default="backward", show_default=True,
-              help="The compatibility the change must keep.")
+@click.argument("paths", nargs=-1, type=click.Path())
+@click.option("--mode", type=click.Choice(MODES), default=None,
+              help="The compatibility the change must keep.  [default: backward, or the configuration's]")
 @click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
-def check(old, new, mode, format_, include, output):
-    """Compare OLD with NEW (two files, or two directories paired by relative path)."""
-    from .api import check as run_check
-    from .report import render
+@click.option("--base", metavar="REF", default=None,
+              help="Compare the working tree with this git revision; PATHS limit the files.")
+@click.option("--staged", is_flag=True, help="With git: compare the index (what will be committed), not the working tree.")
+@click.option("--config", "config_file", type=click.Path(dir_okay=False),
+              help="Configuration file (default: the nearest evolint.toml or pyproject.toml [tool.evolint]).")
+def check(paths, mode, format_, include, output, base, staged, config_file):
+    """Compare OLD with NEW (two files, or two directories paired by relative path).
 
-    report = run_check(old, new, mode=mode, format=format_, include=include)
+    With --base REF or --staged: compare the working tree or the index with a git revision.
+    """
+    from .report import render
+    from .runs import run_check
+
+    report = run_check(paths, mode=mode, format=format_, include=include, base=base, staged=staged,
+                       config_file=config_file)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)
 

@@ -163,6 +163,8 @@ class Comparison:
     new: str
     format: str
     findings: tuple[Finding, ...] = ()
+    # The mode this pair must keep, where configuration sets one per path (else the run's).
+    mode: str | None = None
 
     @property
     def compatibility(self) -> Compat:
