@@ -14,7 +14,7 @@ from urllib.parse import quote
 from .. import __version__
 from ._shared import effect, strip_revision
 
-SCHEMA_URI = "https://raw.githubusercontent.com/oasis-tcs/sarif-spec/master/Schemata/sarif-schema-2.1.0.json"
+SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
 LEVEL = {"error": "error", "warning": "warning", "info": "note"}
 
 
