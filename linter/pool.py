@@ -19,8 +19,12 @@ THRESHOLD = 48
 ENV_JOBS = "EVOLINT_JOBS"
 
 
+def _proxy(mapping: dict) -> types.MappingProxyType:
+    return types.MappingProxyType(mapping)
+
+
 def _reduce_proxy(proxy):
-    return types.MappingProxyType, (dict(proxy),)
+    return _proxy, (dict(proxy),)
 
 
 # Findings hold read-only mappings; pickle them as the dicts they wrap.

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import json
 
-from linter.formats import Schema, read_text
+from linter.formats import Schema, parse_json, read_text
 from linter.model import Location
 from linter.semantics import annotation_changes
 
@@ -16,7 +16,7 @@ KINDS = frozenset()
 
 
 def load(path, display, options):
-    data = json.loads(read_text(path, display))
+    data = parse_json(read_text(path, display), display)
     full = f"{data['namespace']}.{data['name']}"
     return Schema("avro", display, (full,), {full: frozenset(f["name"] for f in data["fields"])}, data)
 
