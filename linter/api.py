@@ -125,7 +125,8 @@ def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: 
     new_schema = module.load(pair.new, pair.new_display, options)
     changes = module.diff(old_schema, new_schema)
     findings = engine.judge(changes, cat, policy)
-    return Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings), policy.mode)
+    return Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings), policy.mode,
+                      old_fields={r: frozenset(p) for r, p in old_schema.fields.items()})
 
 
 def compare(pairs_: Iterable[Pair], policy: engine.Policy | Callable[[Pair], engine.Policy], *,
@@ -144,17 +145,28 @@ def compare(pairs_: Iterable[Pair], policy: engine.Policy | Callable[[Pair], eng
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
           include: Iterable[str] = (), policy: engine.Policy | Callable[[Pair], engine.Policy] | None = None,
-          options: Options | None = None, jobs: int | None = None) -> Report:
+          options: Options | None = None, consumers: str | Path | None = None,
+          jobs: int | None = None) -> Report:
     """Compare OLD with NEW (two files or two directories) and classify every change.
 
     ``policy`` may be a function of each pair (settings configured per path).
+    ``consumers`` names a consumer registry (YAML): the report then says which consumers
+    read what changed and which of them must be told.
     """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
     policy = policy or engine.Policy(mode=mode)
     options = options or Options(include=tuple(include))
+    registry = None
+    if consumers is not None:
+        from . import consumers as impact
+
+        registry = impact.load(consumers)  # a bad registry fails before any schema is read
     comparisons = compare(pairs(old, new), policy, format=format, options=options, jobs=jobs)
-    return Report(mode=policy.mode if isinstance(policy, engine.Policy) else mode, comparisons=comparisons)
+    report = Report(mode=policy.mode if isinstance(policy, engine.Policy) else mode, comparisons=comparisons)
+    if registry is not None:
+        impact.apply(report, registry, warn_unmatched=Path(old).is_dir())
+    return report
 
 
 def load(path: str | Path, *, format: str | None = None, options: Options | None = None) -> Schema:

@@ -43,12 +43,14 @@ def cli(ctx, debug):
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
+@click.option("--consumers", type=click.Path(), default=None,
+              help="Consumer registry (YAML): say who reads what changed and who must be told.")
 @click.option("--base", metavar="REF", default=None,
               help="Compare the working tree with this git revision; PATHS limit the files.")
 @click.option("--staged", is_flag=True, help="With git: compare the index (what will be committed), not the working tree.")
 @click.option("--config", "config_file", type=click.Path(dir_okay=False),
               help="Configuration file (default: the nearest evolint.toml or pyproject.toml [tool.evolint]).")
-def check(paths, mode, format_, include, output, base, staged, config_file):
+def check(paths, mode, format_, include, output, consumers, base, staged, config_file):
     """Compare OLD with NEW (two files, or two directories paired by relative path).
 
     With --base REF or --staged: compare the working tree or the index with a git revision.
@@ -57,8 +59,31 @@ def check(paths, mode, format_, include, output, base, staged, config_file):
     from .runs import run_check
 
     report = run_check(paths, mode=mode, format=format_, include=include, base=base, staged=staged,
-                       config_file=config_file)
+                       config_file=config_file, consumers=consumers)
     render(output, report, sys.stdout)
+    raise Failed(report.exit_code)
+
+
+@cli.command()
+@click.argument("old", type=click.Path())
+@click.argument("new", type=click.Path())
+@click.option("--consumers", type=click.Path(), required=True,
+              help="Consumer registry (YAML) naming who reads which fields.")
+@click.option("--mode", type=click.Choice(MODES), default="backward", show_default=True,
+              help="The compatibility the change must keep (a consumer's own 'needs' wins).")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(("markdown", "json")), default="markdown", show_default=True,
+              help="Markdown to paste, or the same content as JSON.")
+def announce(old, new, consumers, mode, format_, include, output):
+    """Write the announcement of a change: who must be told, and what changes for them."""
+    from .announce import render as render_announcement
+    from .api import check as run_check
+
+    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
+    render_announcement(report, sys.stdout, output)
     raise Failed(report.exit_code)
 
 

@@ -23,14 +23,19 @@ def with_expired(report: api.Report, config: Config) -> api.Report:
 def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | None = None,
               include: Iterable[str] = (), base: str | None = None, staged: bool = False,
               config_file: str | None = None, encodings: tuple[str, ...] | None = None,
-              cwd: str | Path = ".") -> api.Report:
+              consumers: str | None = None, cwd: str | Path = ".") -> api.Report:
     paths = tuple(paths)
     config = discover(config_file, cwd)
+    consumers = consumers or config.consumers
     if base is not None or staged:
+        from . import consumers as impact
         from . import revision
 
-        return revision.check(base or "HEAD", paths, staged=staged, mode=mode, encodings=encodings,
-                              format=format, include=include, config=config, cwd=cwd)
+        registry = impact.load(consumers) if consumers else None  # fails before any git work
+        report = revision.check(base or "HEAD", paths, staged=staged, mode=mode, encodings=encodings,
+                                format=format, include=include, config=config, cwd=cwd)
+        # a git run compares only changed files, so entries for the others are not "unmatched"
+        return impact.apply(report, registry) if registry else report
     if len(paths) != 2:
         raise UsageError("check needs OLD and NEW (two files or two folders), "
                          "or --base REF / --staged to compare with git")
@@ -38,5 +43,5 @@ def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | No
     report = api.check(
         old, new, mode=mode or config.mode or "backward", format=format,
         policy=lambda pair: config.policy(pair.new or pair.old, mode=mode, encodings=encodings),
-        options=api.Options(include=tuple(include) + config.include))
+        options=api.Options(include=tuple(include) + config.include), consumers=consumers)
     return with_expired(report, config)

@@ -75,6 +75,28 @@ def summary_line(report) -> str:
     return f"{verdict}; {keeps} mode '{report.mode}' ({tally})"
 
 
+def render_consumers(console, report) -> None:
+    """Who must be told (with contacts and why), then who is informed or unaffected."""
+    from rich.markup import escape
+
+    by = defaultdict(list)
+    for c in report.consumers:
+        by[c.get("verdict", "must-be-told" if c["notify"] else "unaffected")].append(c)
+    told = by["must-be-told"]
+    console.print()
+    console.print(f"[bold]Consumers to tell ({len(told)})[/]" if told else "[bold]No consumer must be told[/]")
+    findings = report.findings
+    for c in told:
+        console.print(f"  [bold]{escape(c['name'])}[/] <{escape(c['contact'])}>")
+        for reason in c.get("reasons", []):
+            f = findings[reason["finding"]]
+            console.print(f"    {f.rule} {escape(f.schema)}{escape(':' + f.path if f.path else '')}  "
+                          f"[dim]{escape(reason['why'])}[/]")
+    for verdict in ("informed", "unaffected"):
+        if by[verdict]:
+            console.print(f"{verdict.capitalize()}: {escape(', '.join(c['name'] for c in by[verdict]))}")
+
+
 def render(report, stream, color: bool | None = None, **_options) -> None:
     from rich.markup import escape
 
@@ -87,3 +109,5 @@ def render(report, stream, color: bool | None = None, **_options) -> None:
     console.print()
     style = "bold green" if report.passed else "bold red"
     console.print(f"[{style}]{'PASS' if report.passed else 'FAIL'}[/] {escape(summary_line(report))}")
+    if report.consumers:
+        render_consumers(console, report)
