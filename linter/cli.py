@@ -88,6 +88,30 @@ def announce(old, new, consumers, mode, format_, include, output):
 
 
 @cli.command()
+@click.argument("target", type=click.Path())
+@click.option("--git", "use_git", is_flag=True, help="Take the versions from the commits that changed TARGET.")
+@click.option("--every-earlier", is_flag=True,
+              help="Compare each version with every earlier one, not only its predecessor.")
+@click.option("--mode", type=click.Choice(MODES), default=None,
+              help="The compatibility each step must keep.  [default: backward, or the configuration's]")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True)
+@click.option("--config", "config_file", type=click.Path(dir_okay=False), help="Configuration file.")
+def history(target, use_git, every_earlier, mode, format_, include, output, config_file):
+    """Check a schema's history: folders v1/ v2/ ..., files name.1.avsc name.2.avsc ..., or --git."""
+    from . import history as hist
+    from .config import discover
+
+    result = hist.run(target, use_git=use_git, every_earlier=every_earlier, mode=mode, format=format_,
+                      include=include, config=discover(config_file))
+    (hist.render_json if output == "json" else hist.render_text)(result, sys.stdout)
+    raise Failed(result.exit_code)
+
+
+@cli.command()
 @click.argument("rule_id", required=False)
 @click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True)
 def rules(rule_id, output):
