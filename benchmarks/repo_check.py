@@ -101,7 +101,9 @@ def main() -> None:
     from linter.report.json import to_json
 
     cores = pool.jobs_wanted(10**6)
-    print(f"adapter: {note}; cores: {cores}")
+    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
+    # A speed-up needs idle cores: on a machine already busy the pool only adds overhead.
+    print(f"adapter: {note}; cores: {cores}; load average (1 min) before the run: {load:.1f}")
     with tempfile.TemporaryDirectory(prefix="evolint-bench-") as tmp:
         root = Path(tmp)
         build(root, args.files)

@@ -155,3 +155,16 @@ def test_globs(glob, path, hit):
 
 def test_config_error_is_a_usage_error():
     assert issubclass(config.ConfigError, UsageError)
+
+
+def test_the_documented_example_is_a_valid_configuration(tmp_path):
+    import re
+    from pathlib import Path
+
+    page = (Path(__file__).resolve().parent.parent / "docs" / "configuration.md").read_text()
+    example = re.search(r"```toml\n(.*?)```", page, re.S)[1]
+    (tmp_path / "pyproject.toml").write_text(example)
+    loaded = config.load(tmp_path / "pyproject.toml")
+    assert loaded.mode == "backward" and len(loaded.waivers) == 2 and len(loaded.by_path) == 2
+    assert loaded.mode_for(tmp_path / "schemas" / "archive" / "old" / "x.avsc", "backward") == "none"
+    assert loaded.severities == {"S002": "error", "G002": "warning"}

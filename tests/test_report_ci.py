@@ -121,3 +121,27 @@ def test_annotations_are_workflow_commands(report):
 def test_annotation_escaping():
     assert escape_data("100%\r\n") == "100%25%0D%0A"
     assert escape_property("a:b,c") == "a%3Ab%2Cc"
+
+
+def test_cli_outputs_on_a_git_run(tmp_path, monkeypatch, capsys, sarif_validator):
+    from gitrepo import Repo, leak_alert, meter_reading
+    from linter.cli import main
+
+    repo = Repo(tmp_path / "utility")
+    repo.write("schemas/meter_reading.avsc", meter_reading())
+    repo.write("schemas/leak_alert.avsc", leak_alert())
+    repo.commit("schemas")
+    repo.git("rm", "-q", "schemas/leak_alert.avsc")
+    monkeypatch.chdir(repo.path)
+    outputs = {}
+    for name in ("sarif", "markdown", "annotations"):
+        with pytest.raises(SystemExit) as exit_:
+            main(["check", "--staged", "--output", name])
+        assert exit_.value.code == 1
+        outputs[name] = capsys.readouterr().out
+    sarif = json.loads(outputs["sarif"])
+    assert not list(sarif_validator.iter_errors(sarif))
+    location = sarif["runs"][0]["results"][0]["locations"][0]["physicalLocation"]["artifactLocation"]
+    assert location == {"uri": "schemas/leak_alert.avsc"}
+    assert "| error | G001 |" in outputs["markdown"]
+    assert outputs["annotations"].startswith("::error file=schemas/leak_alert.avsc,")
