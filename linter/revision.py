@@ -92,17 +92,17 @@ def check(ref: str = "HEAD", paths: Iterable[str] = (), *, staged: bool = False,
     with scratch("evolint-git-") as tmp:
         old_root, new_root = Path(tmp) / "old", Path(tmp) / "new"
         any_proto = any(Path(p).suffix.lower() == ".proto" for c in changed for p in (c.old, c.new) if p)
-        old_tree = git.tree_files(base, cwd) if changed else {}
-        wanted = {c.old for c in changed if c.old}
+        # Blobs are named as git names them (REF:path, :0:path for the index), so no tree
+        # listing is needed unless Protobuf imports call for every .proto file of the side.
+        wanted = {c.old: f"{base}:{c.old}" for c in changed if c.old}
         if any_proto:
-            wanted |= {p for p in old_tree if p.endswith(".proto")}
-        git.materialise({p: old_tree[p] for p in wanted if p in old_tree}, old_root, cwd)
+            wanted.update({p: oid for p, oid in git.tree_files(base, cwd).items() if p.endswith(".proto")})
+        git.materialise(wanted, old_root, cwd)
         if staged and changed:
-            index = git.index_files(cwd)
-            wanted = {c.new for c in changed if c.new}
+            wanted = {c.new: f":0:{c.new}" for c in changed if c.new}
             if any_proto:
-                wanted |= {p for p in index if p.endswith(".proto")}
-            git.materialise({p: index[p] for p in wanted if p in index}, new_root, cwd)
+                wanted.update({p: oid for p, oid in git.index_files(cwd).items() if p.endswith(".proto")})
+            git.materialise(wanted, new_root, cwd)
             new_home = new_root
         else:
             new_home = top

@@ -175,3 +175,35 @@ def test_bad_ref_exits_2_with_one_line(repo, capsys, monkeypatch):
     status, _, err = run_cli(["check", "--base", "nope"], capsys, repo.path, monkeypatch)
     assert status == 2
     assert err.count("\n") == 1 and "nope" in err
+
+
+def test_protobuf_imports_resolve_against_the_same_revision(repo, monkeypatch):
+    """When a .proto file changed, every .proto file of the OLD revision is written out beside it."""
+    import types
+
+    from linter import api
+    from linter.formats import Schema
+
+    seen = {}
+
+    def load(path, display, options):
+        common = path.parent / "common.proto"
+        seen[display] = (common.read_text() if common.exists() else None, options.include)
+        return Schema("protobuf", display, (), {}, None)
+
+    fake = types.SimpleNamespace(name="protobuf", KINDS=frozenset(), load=load, diff=lambda old, new: [])
+    real = api.adapter
+    monkeypatch.setattr(api, "adapter", lambda fmt: fake if fmt == "protobuf" else real(fmt))
+    repo.write("proto/common.proto", 'syntax = "proto3";\n// old revision\n')
+    repo.write("proto/pump_status.proto", 'syntax = "proto3";\nimport "common.proto";\n')
+    repo.commit("protos")
+    repo.write("proto/common.proto", 'syntax = "proto3";\n// new revision\n')  # unstaged edit
+    repo.write("proto/pump_status.proto", 'syntax = "proto3";\nimport "common.proto";\n// edited\n')
+    repo.git("add", "proto/pump_status.proto")
+    revision.check("HEAD", staged=True, include=[str(repo.path / "proto")], cwd=repo.path)
+    old_common, old_include = seen["HEAD:proto/pump_status.proto"]
+    new_common, new_include = seen["proto/pump_status.proto"]
+    assert old_common == 'syntax = "proto3";\n// old revision\n'
+    assert new_common == 'syntax = "proto3";\n// old revision\n'  # the index still holds the old one
+    assert old_include[0] != str(repo.path / "proto") and old_include[0].endswith("old/proto")
+    assert new_include[0].endswith("new/proto")
