@@ -1,0 +1,364 @@
+"""The Avro adapter: load ``.avsc`` files and list what changed between two of them.
+
+The differ reports facts (``Change``); the effect of each kind on backward and forward
+compatibility lives in ``rules/avro.toml``. Kinds are split by outcome: the same edit
+is a different kind when it reads differently (a field added with a default is not a
+field added without one), and every kind is judged both ways, OLD as writer and NEW as
+reader (backward) and NEW as writer and OLD as reader (forward). The rules follow the
+Avro specification 1.12.0, "Schema Resolution".
+"""
+from __future__ import annotations
+
+import copy
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from ..errors import InputError
+from ..model import Change, Location
+from ..semantics import annotation_changes
+from ..sourcemap import SourceMap
+from . import Options, Schema, parse_json, read_text
+from .avro_resolve import first_match, promotable, resolve
+from .avro_schema import PRIMITIVES, Field, Model, Node, parse
+
+name = "avro"
+
+# Promotions that keep every value exactly; the others round large numbers.
+LOSSLESS = {("int", "long"), ("int", "double"), ("float", "double")}
+
+KINDS = frozenset({
+    "avro-field-added-with-default", "avro-field-added-without-default",
+    "avro-field-removed-with-default", "avro-field-removed-without-default",
+    "avro-field-renamed-with-alias", "avro-field-renamed-both-ways", "avro-field-renamed-reverting-alias",
+    "avro-field-default-added", "avro-field-default-removed", "avro-field-default-changed",
+    "avro-field-order-changed", "avro-doc-changed",
+    "avro-type-promoted", "avro-type-promoted-lossy", "avro-type-demoted", "avro-type-demoted-lossy",
+    "avro-string-to-bytes", "avro-bytes-to-string", "avro-type-changed",
+    "avro-namespace-changed", "avro-type-renamed", "avro-type-renamed-with-alias",
+    "avro-type-renamed-both-ways", "avro-type-renamed-reverting-alias",
+    "avro-enum-symbol-added", "avro-enum-symbol-added-covered-by-default",
+    "avro-enum-symbol-removed", "avro-enum-symbol-removed-covered-by-default",
+    "avro-enum-default-changed", "avro-enum-symbols-reordered",
+    "avro-fixed-size-changed",
+    "avro-union-branch-added", "avro-union-new-branch-read-as-other",
+    "avro-union-branch-removed", "avro-union-old-branch-read-as-other", "avro-union-branches-reordered",
+    "avro-logical-type-changed", "avro-decimal-changed",
+})
+
+
+@dataclass
+class Loaded:
+    """What ``load`` hands the differ: the node graph and where its objects are."""
+
+    model: Model
+    file: str
+    sourcemap: SourceMap
+
+    def loc(self, raw) -> Location:
+        line = self.sourcemap.line_of(raw) if isinstance(raw, (dict, list)) else None
+        return Location(self.file, line)
+
+
+def load(path: Path, display: str, options: Options | None = None) -> Schema:
+    text = read_text(Path(path), display)
+    data = parse_json(text, display)
+    sourcemap = SourceMap(text, data)
+    model = parse(data, display, sourcemap.locate)
+    _fastavro_gate(data, model, display)
+    roots = root_names(model.root, display)
+    fields = {root: frozenset(field_paths(model.names[root])) if root in model.names else frozenset()
+              for root in roots}
+    return Schema("avro", display, roots, fields, Loaded(model, display, sourcemap))
+
+
+def _fastavro_gate(data, model: Model, display: str) -> None:
+    """What our own walk accepts, fastavro must parse too; it names its own reason.
+
+    fastavro rejects invalid logical types (a decimal whose scale exceeds its precision),
+    where the specification says to ignore them: those are taken out of its copy.
+    """
+    from fastavro import parse_schema
+
+    memo: dict = {}
+    checked = copy.deepcopy(data, memo)
+    for obj in model.ignored_logical:
+        memo[id(obj)].pop("logicalType", None)
+    try:
+        parse_schema(checked, _write_hint=False)
+    except Exception as exc:  # noqa: BLE001 - fastavro raises many types; all mean bad input
+        reason = " ".join(str(exc).split()) or type(exc).__name__
+        raise InputError(f"not a valid Avro schema: {reason}", display) from None
+
+
+def root_names(root: Node, display: str) -> tuple[str, ...]:
+    branches = root.branches if root.kind == "union" else [root]
+    names = [b.name for b in branches if b.named]
+    if len(names) < len(branches):
+        names.append(display)  # unnamed top-level types are known by the file
+    return tuple(dict.fromkeys(names))
+
+
+def field_paths(node: Node, prefix: str = "", active: frozenset = frozenset()):
+    """Every dotted field path below ``node``; unions, arrays and maps are transparent."""
+    if node.kind == "union":
+        for b in node.branches:
+            yield from field_paths(b, prefix, active)
+    elif node.kind in ("array", "map"):
+        yield from field_paths(node.items, prefix, active)
+    elif node.kind == "record" and id(node) not in active:
+        for f in node.fields:
+            path = f"{prefix}.{f.name}" if prefix else f.name
+            yield path
+            yield from field_paths(f.type, path, active | {id(node)})
+
+
+@dataclass(frozen=True)
+class Ctx:
+    schema: str
+    path: str
+    old_loc: Location | None
+    new_loc: Location | None
+    top: bool = False
+
+    def at(self, name: str, old_loc, new_loc) -> "Ctx":
+        return Ctx(self.schema, f"{self.path}.{name}" if self.path else name, old_loc, new_loc)
+
+
+def diff(old: Schema, new: Schema) -> list[Change]:
+    differ = _Differ(old.model, new.model)
+    o, n = old.model.model.root, new.model.model.root
+    schema = o.name if o.named else (n.name if n.named else new.file)
+    differ.node(o, n, Ctx(schema, "", old.model.loc(o.raw), new.model.loc(n.raw), top=True))
+    return differ.changes
+
+
+def _same_value(a, b) -> bool:
+    """JSON values equal as Avro reads them (1 == 1.0, but true != 1)."""
+    if isinstance(a, bool) or isinstance(b, bool):
+        return type(a) is type(b) and a == b
+    if isinstance(a, list) and isinstance(b, list):
+        return len(a) == len(b) and all(_same_value(x, y) for x, y in zip(a, b))
+    if isinstance(a, dict) and isinstance(b, dict):
+        return a.keys() == b.keys() and all(_same_value(a[k], b[k]) for k in a)
+    return a == b
+
+
+class _Differ:
+    def __init__(self, old: Loaded, new: Loaded):
+        self.old, self.new = old, new
+        self.changes: list[Change] = []
+        self.active: set[tuple[int, int]] = set()
+
+    def emit(self, kind: str, ctx: Ctx, old=None, new=None, **facts) -> None:
+        self.changes.append(Change(kind, ctx.schema, ctx.path, old, new, ctx.old_loc, ctx.new_loc, facts))
+
+    # -- dispatch -------------------------------------------------------------------
+    def node(self, o: Node, n: Node, ctx: Ctx) -> None:
+        if o.kind == "union" or n.kind == "union":
+            return self.union(o, n, ctx)
+        if ctx.top and o.kind == n.kind == "record":
+            ctx = Ctx(o.name, "", ctx.old_loc, ctx.new_loc)  # a root record starts its own paths
+        elif ctx.top:
+            ctx = replace(ctx, top=False)
+        key = (id(o), id(n))
+        if key in self.active:  # recursive types: this pair is being compared further up
+            return
+        self.active.add(key)
+        try:
+            if o.kind == n.kind:
+                self.HANDLERS.get(o.kind, _Differ.same_primitive)(self, o, n, ctx)
+            elif o.kind in PRIMITIVES and n.kind in PRIMITIVES:
+                self.primitive_changed(o, n, ctx)
+            else:
+                self.emit("avro-type-changed", ctx, o.describe(), n.describe())
+        finally:
+            self.active.discard(key)
+
+    # -- named types ------------------------------------------------------------------
+    def names(self, o: Node, n: Node, ctx: Ctx) -> None:
+        if o.name == n.name:
+            return
+        if o.short == n.short:
+            self.emit("avro-namespace-changed", ctx, o.name, n.name, type_kind=o.kind)
+            return
+        backward, forward = n.name and o.name in n.aliases, o.name and n.name in o.aliases
+        kind = {(True, True): "avro-type-renamed-both-ways", (True, False): "avro-type-renamed-with-alias",
+                (False, True): "avro-type-renamed-reverting-alias", (False, False): "avro-type-renamed"}
+        self.emit(kind[bool(backward), bool(forward)], ctx, o.name, n.name, type_kind=o.kind)
+
+    def doc(self, o_doc, n_doc, ctx: Ctx, what: str) -> None:
+        if (o_doc or "").strip() != (n_doc or "").strip():
+            self.emit("avro-doc-changed", ctx, o_doc, n_doc, what=what)
+
+    def record(self, o: Node, n: Node, ctx: Ctx) -> None:
+        self.names(o, n, ctx)
+        self.doc(o.doc, n.doc, ctx, f"record {n.name}")
+        self.changes.extend(annotation_changes(ctx.schema, ctx.path, o.annotations, n.annotations,
+                                               ctx.old_loc, ctx.new_loc))
+        pairs, old_left, new_left = _pair_fields(o, n)
+        for of, nf in pairs:
+            self.field(of, nf, ctx, o, n)
+        for of in old_left:
+            fctx = ctx.at(of.name, self.old.loc(of.raw), None)
+            kind = "avro-field-removed-with-default" if of.has_default else "avro-field-removed-without-default"
+            self.emit(kind, fctx, of.type.describe(), None, field=of.name, record=o.name)
+        for nf in new_left:
+            fctx = ctx.at(nf.name, None, self.new.loc(nf.raw))
+            kind = "avro-field-added-with-default" if nf.has_default else "avro-field-added-without-default"
+            self.emit(kind, fctx, None, nf.type.describe(), field=nf.name, record=n.name)
+
+    def field(self, of: Field, nf: Field, ctx: Ctx, o: Node, n: Node) -> None:
+        fctx = ctx.at(of.name, self.old.loc(of.raw), self.new.loc(nf.raw))
+        if of.name != nf.name:
+            backward = of.name in nf.aliases or nf.has_default
+            forward = nf.name in of.aliases or of.has_default
+            kind = {(True, True): "avro-field-renamed-both-ways", (True, False): "avro-field-renamed-with-alias",
+                    (False, True): "avro-field-renamed-reverting-alias"}[backward, forward]
+            self.emit(kind, fctx, of.name, nf.name)
+        if of.has_default and nf.has_default:
+            if not _same_value(of.default, nf.default):
+                self.emit("avro-field-default-changed", fctx, _json(of.default), _json(nf.default))
+        elif nf.has_default:
+            self.emit("avro-field-default-added", fctx, None, _json(nf.default))
+        elif of.has_default:
+            self.emit("avro-field-default-removed", fctx, _json(of.default), None)
+        self.doc(of.doc, nf.doc, fctx, f"field {of.name}")
+        if of.order != nf.order:
+            self.emit("avro-field-order-changed", fctx, of.order, nf.order)
+        # A record's unit applies to its fields without one (docs/annotations.md).
+        self.changes.extend(annotation_changes(fctx.schema, fctx.path, of.annotations, nf.annotations,
+                                               fctx.old_loc, fctx.new_loc,
+                                               old_type=o.annotations, new_type=n.annotations))
+        self.node(of.type, nf.type, fctx)
+
+    def enum(self, o: Node, n: Node, ctx: Ctx) -> None:
+        self.names(o, n, ctx)
+        self.doc(o.doc, n.doc, ctx, f"enum {n.name}")
+        added = [s for s in n.symbols if s not in o.symbols]
+        removed = [s for s in o.symbols if s not in n.symbols]
+        if added:
+            kind = "avro-enum-symbol-added-covered-by-default" if o.enum_default else "avro-enum-symbol-added"
+            self.emit(kind, ctx, list(o.symbols), list(n.symbols), symbols=added, enum=n.name,
+                      default=o.enum_default)
+        if removed:
+            kind = "avro-enum-symbol-removed-covered-by-default" if n.enum_default else "avro-enum-symbol-removed"
+            self.emit(kind, ctx, list(o.symbols), list(n.symbols), symbols=removed, enum=n.name,
+                      default=n.enum_default)
+        common_old = [s for s in o.symbols if s in n.symbols]
+        common_new = [s for s in n.symbols if s in o.symbols]
+        if common_old != common_new:
+            self.emit("avro-enum-symbols-reordered", ctx, common_old, common_new, enum=n.name)
+        if o.enum_default != n.enum_default:
+            self.emit("avro-enum-default-changed", ctx, o.enum_default or "none", n.enum_default or "none",
+                      enum=n.name)
+
+    def fixed(self, o: Node, n: Node, ctx: Ctx) -> None:
+        self.names(o, n, ctx)
+        if o.size != n.size:
+            self.emit("avro-fixed-size-changed", ctx, o.size, n.size, fixed=n.name)
+        self.logical(o, n, ctx)
+
+    def container(self, o: Node, n: Node, ctx: Ctx) -> None:
+        self.node(o.items, n.items, ctx)
+
+    # -- primitives and logical types -----------------------------------------------------
+    def same_primitive(self, o: Node, n: Node, ctx: Ctx) -> None:
+        self.logical(o, n, ctx)
+
+    def primitive_changed(self, o: Node, n: Node, ctx: Ctx) -> None:
+        a, b = o.kind, n.kind
+        if {a, b} == {"string", "bytes"}:
+            kind = "avro-string-to-bytes" if a == "string" else "avro-bytes-to-string"
+        elif promotable(a, b):
+            kind = "avro-type-promoted" if (a, b) in LOSSLESS else "avro-type-promoted-lossy"
+        elif promotable(b, a):
+            kind = "avro-type-demoted" if (b, a) in LOSSLESS else "avro-type-demoted-lossy"
+        else:
+            kind = "avro-type-changed"
+        self.emit(kind, ctx, o.describe(), n.describe())
+        if kind != "avro-type-changed":
+            self.logical(o, n, ctx)
+
+    def logical(self, o: Node, n: Node, ctx: Ctx) -> None:
+        if o.logical == n.logical == "decimal":
+            if (o.precision, o.scale) != (n.precision, n.scale):
+                self.emit("avro-decimal-changed", ctx, f"decimal({o.precision},{o.scale})",
+                          f"decimal({n.precision},{n.scale})")
+        elif o.logical != n.logical:
+            self.emit("avro-logical-type-changed", ctx, o.logical or "none", n.logical or "none",
+                      physical=n.kind)
+
+    # -- unions -------------------------------------------------------------------------
+    def union(self, o: Node, n: Node, ctx: Ctx) -> None:
+        """Unions in all four shapes (a non-union side is a union of one branch).
+
+        The spec resolves each writer branch against the first reader branch it matches,
+        so each direction has its own pairing: OLD's branches into NEW (backward) and NEW's
+        into OLD (forward). A pair both directions agree on is compared as any two types;
+        a branch whose reader differs by direction gets a kind with a one-sided effect.
+        """
+        old_b = o.branches if o.kind == "union" else [o]
+        new_b = n.branches if n.kind == "union" else [n]
+        into_new = [first_match(b, new_b) for b in old_b]   # backward: OLD writes, NEW reads
+        into_old = [first_match(c, old_b) for c in new_b]   # forward: NEW writes, OLD reads
+        mutual = [(i, new_b.index(t)) for i, t in enumerate(into_new)
+                  if t is not None and into_old[new_b.index(t)] is old_b[i]]
+        # A primitive branch retyped by promotion ([null, int] -> [null, long]): OLD reads
+        # into it, nothing of OLD reads it back; reported as the type change it is.
+        for i, t in enumerate(into_new):
+            if t is None or t.kind not in PRIMITIVES or old_b[i].kind not in PRIMITIVES:
+                continue
+            j = new_b.index(t)
+            if into_old[j] is None and sum(x is t for x in into_new) == 1 and (i, j) not in mutual:
+                mutual.append((i, j))
+        paired_old = {i for i, _ in mutual}
+        paired_new = {j for _, j in mutual}
+        for i, b in enumerate(old_b):
+            if i in paired_old:
+                continue
+            target = into_new[i]
+            readable = target is not None and not resolve(b, target)
+            kind = "avro-union-old-branch-read-as-other" if readable else "avro-union-branch-removed"
+            self.emit(kind, ctx, o.describe(), n.describe(), branch=b.describe(),
+                      read_as=target.describe() if target else "nothing")
+        for j, c in enumerate(new_b):
+            if j in paired_new:
+                continue
+            target = into_old[j]
+            readable = target is not None and not resolve(c, target)
+            kind = "avro-union-new-branch-read-as-other" if readable else "avro-union-branch-added"
+            self.emit(kind, ctx, o.describe(), n.describe(), branch=c.describe(),
+                      read_as=target.describe() if target else "nothing")
+        if o.kind == n.kind == "union":
+            order = [j for _, j in sorted(mutual)]
+            if order != sorted(order):
+                self.emit("avro-union-branches-reordered", ctx, o.describe(), n.describe())
+        for i, j in sorted(mutual):
+            self.node(old_b[i], new_b[j], ctx)
+
+    HANDLERS = {"record": record, "enum": enum, "fixed": fixed, "array": container, "map": container}
+
+
+def _pair_fields(o: Node, n: Node):
+    """Fields by name, then by NEW's aliases (read backward), then by OLD's (read forward)."""
+    pairs, old_left, new_left = [], list(o.fields), list(n.fields)
+
+    def take(test):
+        for nf in list(new_left):
+            of = next((f for f in old_left if test(f, nf)), None)
+            if of is not None:
+                pairs.append((of, nf))
+                old_left.remove(of)
+                new_left.remove(nf)
+
+    take(lambda of, nf: of.name == nf.name)
+    take(lambda of, nf: of.name in nf.aliases)
+    take(lambda of, nf: nf.name in of.aliases)
+    pairs.sort(key=lambda p: p[0].position)
+    return pairs, old_left, new_left
+
+
+def _json(value) -> str:
+    import json
+
+    return json.dumps(value, ensure_ascii=False)

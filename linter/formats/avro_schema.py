@@ -1,0 +1,380 @@
+"""Avro schemas as a graph of nodes: names resolved, defaults checked, positions kept.
+
+fastavro's parser is the gate (a schema it rejects is rejected), but it accepts some
+schemas the Avro specification 1.12.0 forbids (duplicate field names, unions holding
+two schemas of one type, a fixed without a size raises a bare KeyError) and it drops
+the positions evolint reports. So this module walks the parsed JSON itself, in the
+spec's words, and raises ``InputError`` at the offending object.
+
+Named types are shared: every reference to ``utility.metering.Site`` is the same
+``Node``, so recursive types are cycles, not infinite trees.
+"""
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass, field
+from typing import Any
+
+from ..errors import InputError
+
+PRIMITIVES = ("null", "boolean", "int", "long", "float", "double", "bytes", "string")
+NAMED = ("record", "error", "enum", "fixed")
+NAME = re.compile(r"^[A-Za-z_][A-Za-z0-9_]*$")
+SYMBOL = NAME
+
+# Logical types of the Avro specification 1.12.0, "Logical Types": the physical types
+# each may annotate. Anything else is unknown and, as the spec says, falls back to the
+# underlying type.
+LOGICAL = {
+    "decimal": ("bytes", "fixed"),
+    "big-decimal": ("bytes",),
+    "uuid": ("string", "fixed"),
+    "date": ("int",),
+    "time-millis": ("int",),
+    "time-micros": ("long",),
+    "timestamp-millis": ("long",),
+    "timestamp-micros": ("long",),
+    "timestamp-nanos": ("long",),
+    "local-timestamp-millis": ("long",),
+    "local-timestamp-micros": ("long",),
+    "local-timestamp-nanos": ("long",),
+    "duration": ("fixed",),
+}
+INT_RANGE = {"int": (-2**31, 2**31 - 1), "long": (-2**63, 2**63 - 1)}
+
+
+@dataclass(eq=False)
+class Field:
+    name: str
+    type: "Node"
+    position: int
+    has_default: bool = False
+    default: Any = None
+    aliases: tuple[str, ...] = ()
+    order: str = "ascending"
+    doc: str | None = None
+    annotations: dict = field(default_factory=dict)
+    raw: Any = None
+
+
+@dataclass(eq=False)
+class Node:
+    kind: str                       # a primitive name, record, enum, fixed, array, map, union
+    name: str | None = None         # full name of a named type
+    aliases: tuple[str, ...] = ()   # full names
+    logical: str | None = None      # a known, valid logical type, else None
+    declared_logical: str | None = None  # what the file says, valid or not
+    precision: int | None = None
+    scale: int | None = None
+    size: int | None = None
+    symbols: tuple[str, ...] = ()
+    enum_default: str | None = None
+    fields: list[Field] = field(default_factory=list)
+    items: "Node | None" = None     # array items, map values
+    branches: list["Node"] = field(default_factory=list)
+    doc: str | None = None
+    annotations: dict = field(default_factory=dict)
+    raw: Any = None
+
+    @property
+    def short(self) -> str | None:
+        return self.name.rsplit(".", 1)[-1] if self.name else None
+
+    @property
+    def named(self) -> bool:
+        return self.kind in ("record", "enum", "fixed")
+
+    def field(self, name: str) -> Field | None:
+        return next((f for f in self.fields if f.name == name), None)
+
+    def describe(self) -> str:
+        """A short text for messages: ``long``, ``array<int>``, ``record utility.leaks.Site``."""
+        if self.named:
+            return f"{self.kind} {self.name}"
+        if self.kind == "array":
+            return f"array<{self.items.describe()}>"
+        if self.kind == "map":
+            return f"map<{self.items.describe()}>"
+        if self.kind == "union":
+            return "[" + ", ".join(b.describe() for b in self.branches) + "]"
+        if self.logical:
+            return f"{self.kind} ({self.logical})"
+        return self.kind
+
+
+@dataclass
+class Model:
+    root: Node
+    names: dict[str, Node]
+    # Objects whose logicalType the spec says to ignore (unknown or invalid).
+    ignored_logical: list = field(default_factory=list)
+
+
+def annotations_of(obj: dict) -> dict:
+    """The unit and meaning attributes of a field or a named type (docs/avro.md)."""
+    return {k: obj[k].strip() for k in ("unit", "meaning") if isinstance(obj.get(k), str)}
+
+
+class _Parser:
+    def __init__(self, display: str, locate):
+        self.display = display
+        self.locate = locate
+        self.names: dict[str, Node] = {}
+        self.ignored_logical: list = []
+
+    def fail(self, message: str, obj=None):
+        where = self.locate(obj) if isinstance(obj, (dict, list)) else None
+        raise InputError(message, self.display, *(where or (None, None)))
+
+    def full_name(self, name: str, namespace: str | None, obj) -> str:
+        if not isinstance(name, str) or not name:
+            self.fail("a named type needs a 'name' that is a non-empty string", obj)
+        if "." in name:
+            full = name
+        else:
+            full = f"{namespace}.{name}" if namespace else name
+        for part in full.split("."):
+            if not NAME.match(part):
+                self.fail(f"'{full}' is not a valid Avro name (letters, digits and '_', not starting with a digit)", obj)
+        return full
+
+    def reference(self, name: str, namespace: str | None, where) -> Node:
+        if name in PRIMITIVES:
+            return Node(kind=name)
+        candidates = [name] if "." in name else ([f"{namespace}.{name}"] if namespace else []) + [name]
+        for candidate in candidates:
+            if candidate in self.names:
+                return self.names[candidate]
+        self.fail(f"unknown type name '{name}'" + (f" (looked for '{candidates[0]}')" if candidates[0] != name else ""), where)
+
+    def parse(self, obj, namespace: str | None, where=None) -> Node:
+        if isinstance(obj, str):
+            return self.reference(obj, namespace, where)
+        if isinstance(obj, list):
+            return self.union(obj, namespace)
+        if not isinstance(obj, dict):
+            self.fail(f"a schema is a type name, an object or a union list, not {obj!r}", where)
+        kind = obj.get("type")
+        if isinstance(kind, (dict, list)):
+            # {"type": {...}} or {"type": [...]}: a wrapper around a schema
+            return self.parse(kind, namespace, obj)
+        if not isinstance(kind, str):
+            self.fail("a schema object needs a 'type'", obj)
+        if kind in PRIMITIVES:
+            node = Node(kind=kind, raw=obj)
+            self.logical(node, obj)
+            return node
+        if kind in NAMED:
+            return self.named(obj, kind, namespace)
+        if kind == "array":
+            if "items" not in obj:
+                self.fail("an array needs 'items'", obj)
+            return Node(kind="array", items=self.parse(obj["items"], namespace, obj), raw=obj)
+        if kind == "map":
+            if "values" not in obj:
+                self.fail("a map needs 'values'", obj)
+            return Node(kind="map", items=self.parse(obj["values"], namespace, obj), raw=obj)
+        return self.reference(kind, namespace, obj)
+
+    def union(self, items: list, namespace: str | None) -> Node:
+        node = Node(kind="union", raw=items)
+        seen: dict[str, int] = {}
+        for item in items:
+            branch = self.parse(item, namespace, items)
+            if branch.kind == "union":
+                self.fail("a union may not immediately contain another union", items)
+            key = branch.name if branch.named else branch.kind
+            if key in seen:
+                self.fail(f"union holds '{key}' twice (a union may hold one schema of each type, "
+                          "named types once per name)", items)
+            seen[key] = len(node.branches)
+            node.branches.append(branch)
+        if not node.branches:
+            self.fail("an empty union has no values", items)
+        return node
+
+    def named(self, obj: dict, kind: str, namespace: str | None) -> Node:
+        kind = "record" if kind == "error" else kind
+        ns_attr = obj.get("namespace")
+        if ns_attr is not None and not isinstance(ns_attr, str):
+            self.fail("'namespace' must be a string", obj)
+        if isinstance(ns_attr, str):
+            namespace = ns_attr or None
+        full = self.full_name(obj.get("name"), namespace, obj)
+        own_ns = full.rsplit(".", 1)[0] if "." in full else None
+        if full in self.names or full in PRIMITIVES:
+            self.fail(f"type '{full}' is defined twice", obj)
+        aliases = obj.get("aliases", [])
+        if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
+            self.fail(f"aliases of '{full}' must be a list of names", obj)
+        node = Node(kind=kind, name=full, raw=obj, doc=_doc(obj),
+                    aliases=tuple(self.full_name(a, own_ns, obj) for a in aliases),
+                    annotations=annotations_of(obj))
+        self.names[full] = node  # before the body: a record may refer to itself
+        if kind == "record":
+            self.record_fields(node, obj, own_ns)
+        elif kind == "enum":
+            self.enum(node, obj)
+        else:
+            size = obj.get("size")
+            if not isinstance(size, int) or isinstance(size, bool) or size < 0:
+                self.fail(f"fixed '{full}' needs a 'size' that is a non-negative integer", obj)
+            node.size = size
+            self.logical(node, obj)
+        return node
+
+    def record_fields(self, node: Node, obj: dict, namespace: str | None):
+        fields = obj.get("fields")
+        if not isinstance(fields, list):
+            self.fail(f"record '{node.name}' needs a 'fields' list", obj)
+        for position, raw in enumerate(fields):
+            if not isinstance(raw, dict):
+                self.fail(f"a field of record '{node.name}' must be an object", fields)
+            name = raw.get("name")
+            if not isinstance(name, str) or not NAME.match(name):
+                self.fail(f"field name {name!r} of record '{node.name}' is not a valid Avro name", raw)
+            if node.field(name) is not None:
+                self.fail(f"record '{node.name}' has two fields named '{name}'", raw)
+            if "type" not in raw:
+                self.fail(f"field '{name}' needs a 'type'", raw)
+            aliases = raw.get("aliases", [])
+            if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
+                self.fail(f"aliases of field '{name}' must be a list of names", raw)
+            order = raw.get("order", "ascending")
+            if order not in ("ascending", "descending", "ignore"):
+                self.fail(f"field '{name}' order must be ascending, descending or ignore, not {order!r}", raw)
+            ftype = self.parse(raw["type"], namespace, raw)
+            f = Field(name=name, type=ftype, position=position, has_default="default" in raw,
+                      default=raw.get("default"), aliases=tuple(aliases), order=order,
+                      doc=_doc(raw), annotations=annotations_of(raw), raw=raw)
+            node.fields.append(f)
+            if f.has_default:
+                problem = default_problem(ftype, f.default)
+                if problem:
+                    self.fail(f"field '{name}' default {_show(f.default)} {problem}", raw)
+
+    def enum(self, node: Node, obj: dict):
+        symbols = obj.get("symbols")
+        if not isinstance(symbols, list) or not all(isinstance(s, str) for s in symbols):
+            self.fail(f"enum '{node.name}' needs a 'symbols' list of strings", obj)
+        for s in symbols:
+            if not SYMBOL.match(s):
+                self.fail(f"enum '{node.name}' symbol '{s}' is not a valid Avro name", obj)
+        if len(set(symbols)) != len(symbols):
+            dup = next(s for s in symbols if symbols.count(s) > 1)
+            self.fail(f"enum '{node.name}' lists symbol '{dup}' twice", obj)
+        node.symbols = tuple(symbols)
+        if "default" in obj:
+            if obj["default"] not in symbols:
+                self.fail(f"enum '{node.name}' default {_show(obj['default'])} is not one of its symbols", obj)
+            node.enum_default = obj["default"]
+
+    def logical(self, node: Node, obj: dict):
+        name = obj.get("logicalType")
+        if not isinstance(name, str):
+            return
+        node.declared_logical = name
+        self.ignored_logical.append(obj)  # until shown valid below
+        if node.kind not in LOGICAL.get(name, ()):
+            return  # unknown, or on a type it cannot annotate: the underlying type counts
+        if name == "decimal":
+            precision, scale = obj.get("precision"), obj.get("scale", 0)
+            if not (_int(precision) and _int(scale) and precision > 0 and 0 <= scale <= precision):
+                return
+            if node.kind == "fixed" and precision > _max_precision(node.size):
+                return
+            node.precision, node.scale = precision, scale
+        if name == "uuid" and node.kind == "fixed" and node.size != 16:
+            return
+        if name == "duration" and node.size != 12:
+            return
+        node.logical = name
+        self.ignored_logical.pop()
+
+
+def _max_precision(size: int) -> int:
+    # The spec's bound for a decimal in a fixed of ``size`` bytes.
+    return math.floor(math.log10(2 ** (8 * size - 1) - 1)) if size else 0
+
+
+def _int(v) -> bool:
+    return isinstance(v, int) and not isinstance(v, bool)
+
+
+def _doc(obj: dict) -> str | None:
+    doc = obj.get("doc")
+    return doc if isinstance(doc, str) else None
+
+
+def _show(value) -> str:
+    import json
+
+    return json.dumps(value) if not isinstance(value, str) else f"'{value}'"
+
+
+def default_problem(node: Node, value, _stack=()) -> str | None:
+    """Why ``value`` is not a valid default for ``node`` (Avro specification 1.12.0,
+    "Complex Types", record field defaults), or None when it is."""
+    if node.kind == "union":
+        # 1.12.0: a union default may match any branch; the first that matches is used.
+        if any(default_problem(b, value, _stack) is None for b in node.branches):
+            return None
+        return f"matches no branch of {node.describe()}"
+    what = f"is not a {node.describe()}"
+    k = node.kind
+    if k == "null":
+        return None if value is None else what
+    if k == "boolean":
+        return None if isinstance(value, bool) else what
+    if k in INT_RANGE:
+        lo, hi = INT_RANGE[k]
+        return None if _int(value) and lo <= value <= hi else what
+    if k in ("float", "double"):
+        ok = (isinstance(value, (int, float)) and not isinstance(value, bool)) or value in ("NaN", "Infinity", "-Infinity")
+        return None if ok else what
+    if k == "string":
+        return None if isinstance(value, str) else what
+    if k in ("bytes", "fixed"):
+        if not isinstance(value, str) or any(ord(c) > 255 for c in value):
+            return f"{what} (bytes defaults are strings of code points 0-255)"
+        if k == "fixed" and len(value) != node.size:
+            return f"is {len(value)} bytes long, fixed {node.name} holds {node.size}"
+        return None
+    if k == "enum":
+        return None if value in node.symbols else f"is not a symbol of enum {node.name}"
+    if k == "array":
+        if not isinstance(value, list):
+            return what
+        return next((p for p in (default_problem(node.items, v, _stack) for v in value) if p), None)
+    if k == "map":
+        if not isinstance(value, dict):
+            return what
+        return next((p for p in (default_problem(node.items, v, _stack) for v in value.values()) if p), None)
+    if k == "record":
+        if not isinstance(value, dict):
+            return what
+        if id(node) in _stack:
+            return None
+        for f in node.fields:
+            if f.name in value:
+                problem = default_problem(f.type, value[f.name], (*_stack, id(node)))
+                if problem:
+                    return f"member '{f.name}' {problem}"
+            elif not f.has_default:
+                return f"lacks member '{f.name}', which has no default"
+        return None
+    return what
+
+
+def default_branch(node: Node, value) -> Node:
+    """The schema a default value is read as: the first union branch it matches."""
+    if node.kind == "union":
+        return next((b for b in node.branches if default_problem(b, value) is None), node.branches[0])
+    return node
+
+
+def parse(data, display: str, locate) -> Model:
+    parser = _Parser(display, locate)
+    root = parser.parse(data, None, data if isinstance(data, (dict, list)) else None)
+    return Model(root=root, names=parser.names, ignored_logical=parser.ignored_logical)
