@@ -15,6 +15,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import resource
 import statistics
 import subprocess
 import sys
@@ -80,15 +81,36 @@ def build(root: Path, files: int) -> None:
         (root / rel(n)).write_text(json.dumps(schema(n, True), indent=2))
 
 
-def timed(root: Path, jobs: int, paths=(), repeat: int = 3) -> tuple[float, object]:
+def _cpu():
+    own, children = resource.getrusage(resource.RUSAGE_SELF), resource.getrusage(resource.RUSAGE_CHILDREN)
+    return own.ru_utime + own.ru_stime, children.ru_utime + children.ru_stime
+
+
+def timed(root: Path, jobs: int, paths=(), repeat: int = 3):
+    """Median wall time, the report, and the median CPU seconds (own, children)."""
     from linter import revision
 
-    times, report = [], None
+    times, own, kids, report = [], [], [], None
     for _ in range(repeat):
-        start = time.perf_counter()
+        cpu0, start = _cpu(), time.perf_counter()
         report = revision.check("HEAD", paths, cwd=root, jobs=jobs)
         times.append(time.perf_counter() - start)
-    return statistics.median(times), report
+        cpu1 = _cpu()
+        own.append(cpu1[0] - cpu0[0])
+        kids.append(cpu1[1] - cpu0[1])  # git processes, and the pool's workers once reaped
+    return statistics.median(times), report, statistics.median(own), statistics.median(kids)
+
+
+def idle_estimate(serial, parallel, cores: int) -> tuple[float, float]:
+    """Wall times expected on idle cores, from CPU seconds (a busy machine hides any speed-up).
+
+    Serial: own CPU + git's. Pool: the parent's own CPU + git's + the workers' CPU shared out
+    over the cores (workers' CPU = the pool run's children minus the serial run's, i.e. git).
+    """
+    _, _, s_own, s_git = serial
+    _, _, p_own, p_kids = parallel
+    workers = max(0.0, p_kids - s_git)
+    return s_own + s_git, p_own + s_git + workers / cores
 
 
 def main() -> None:
@@ -107,23 +129,28 @@ def main() -> None:
     with tempfile.TemporaryDirectory(prefix="evolint-bench-") as tmp:
         root = Path(tmp)
         build(root, args.files)
-        serial, serial_report = timed(root, 1, repeat=args.repeat)
-        parallel, parallel_report = timed(root, cores, repeat=args.repeat)
+        s_run = timed(root, 1, repeat=args.repeat)
+        p_run = timed(root, cores, repeat=args.repeat)
+        serial, serial_report = s_run[:2]
+        parallel, parallel_report = p_run[:2]
         assert to_json(serial_report) == to_json(parallel_report), "parallel run differs from serial run"
         n = len(serial_report.comparisons)
         print(f"{n} files compared, {len(serial_report.findings)} findings")
         print(f"serial:   {serial:.3f} s  ({serial / n * 1000:.2f} ms per file)")
         print(f"{cores} cores: {parallel:.3f} s  ({parallel / n * 1000:.2f} ms per file)")
-        print(f"speed-up: {serial / parallel:.2f}x")
-        print("crossover (median of repeats; the first N files named as PATHS):")
-        for count in (8, 16, 32, 48, 64, 96, 128):
+        print(f"speed-up: {serial / parallel:.2f}x (wall clock)")
+        e_serial, e_pool = idle_estimate(s_run, p_run, cores)
+        print(f"on idle cores, from CPU time: serial {e_serial:.3f} s, pool {e_pool:.3f} s, "
+              f"speed-up {e_serial / e_pool:.2f}x")
+        print("crossover (median of repeats; the first N files named as PATHS; wall, then idle estimate):")
+        for count in (16, 32, 64, 128, 256, 512):
             if count > args.files:
                 break
             paths = [rel(n) for n in range(count)]
-            s, rs = timed(root, 1, paths, args.repeat)
-            p, _ = timed(root, cores, paths, args.repeat)
-            print(f"  {len(rs.comparisons):>4} files: serial {s * 1000:7.1f} ms, pool {p * 1000:7.1f} ms"
-                  f"  -> {'pool' if p < s else 'serial'}")
+            sr, pr = timed(root, 1, paths, args.repeat), timed(root, cores, paths, args.repeat)
+            es, ep = idle_estimate(sr, pr, cores)
+            print(f"  {len(sr[1].comparisons):>4} files: serial {sr[0] * 1000:7.1f} ms, pool {pr[0] * 1000:7.1f} ms"
+                  f" | idle: serial {es * 1000:7.1f} ms, pool {ep * 1000:7.1f} ms -> {'pool' if ep < es else 'serial'}")
 
 
 if __name__ == "__main__":
