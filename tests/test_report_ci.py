@@ -145,3 +145,16 @@ def test_cli_outputs_on_a_git_run(tmp_path, monkeypatch, capsys, sarif_validator
     assert location == {"uri": "schemas/leak_alert.avsc"}
     assert "| error | G001 |" in outputs["markdown"]
     assert outputs["annotations"].startswith("::error file=schemas/leak_alert.avsc,")
+
+
+def test_markdown_names_the_consumers_to_tell(report):
+    from dataclasses import replace
+
+    comparison = report.comparisons[0]
+    first = replace(comparison.findings[0], consumers=("leak-detection", "billing"))
+    report.comparisons = [replace(comparison, findings=(first, *comparison.findings[1:]))]
+    report.consumers = [{"name": "leak-detection", "contact": "leaks@example.org", "notify": True, "findings": [0]},
+                        {"name": "billing", "contact": "billing@example.org", "notify": False, "findings": [0]}]
+    text = rendered("markdown", report)
+    assert "**Consumers to tell:** leak-detection (leaks@example.org)\n" in text
+    assert "| read by |" in text and "| leak-detection, billing |" in text

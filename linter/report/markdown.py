@@ -31,15 +31,23 @@ def render(report, stream, **_options) -> None:
     out = [verdict(report), ""]
     for warning in report.warnings:
         out += [f"> warning: {cell(warning)}", ""]
+    tell = [c for c in report.consumers if c.get("notify")]
+    if tell:
+        out += ["**Consumers to tell:** " + ", ".join(
+            f"{cell(c['name'])} ({cell(c['contact'])})" if c.get("contact") else cell(c["name"]) for c in tell), ""]
     findings = sorted(report.findings, key=lambda f: ORDER[f.severity])
+    readers = any(f.consumers for f in findings)
     if findings:
-        out += ["| severity | rule | schema | field | effect | message | where |",
-                "|---|---|---|---|---|---|---|"]
+        out += ["| severity | rule | schema | field | effect | message | where |" + (" read by |" if readers else ""),
+                "|---|---|---|---|---|---|---|" + ("---|" if readers else "")]
         for f in findings:
             file, line = anchor(f, report)
             where = f"`{cell(file)}:{line}`" if file and line else (f"`{cell(file)}`" if file else " ")
-            out.append(f"| {f.severity} | {f.rule} | `{cell(f.schema)}` | `{cell(f.path or '(type)')}` | "
-                       f"{effect(f)} | {cell(f.message)} | {where} |")
+            row = (f"| {f.severity} | {f.rule} | `{cell(f.schema)}` | `{cell(f.path or '(type)')}` | "
+                   f"{effect(f)} | {cell(f.message)} | {where} |")
+            if readers:
+                row += f" {cell(', '.join(f.consumers))} |"
+            out.append(row)
         out.append("")
         cat = catalogue.load()
         seen = []
