@@ -206,12 +206,19 @@ def render_text(history: History, stream, color: bool | None = None) -> None:
         if not report.findings:
             console.print(title + " [dim](no findings)[/]")
             continue
-        table = Table(title=title, title_justify="left", show_lines=False, expand=False)
-        for column in ("severity", "rule", "schema", "field", "effect", "message"):
-            table.add_column(column, overflow="fold")
-        for f in report.findings:
+        table = Table(title=title, title_justify="left", show_lines=False, expand=True)
+        table.add_column("severity", no_wrap=True)
+        table.add_column("rule", no_wrap=True)
+        table.add_column("field", overflow="fold", ratio=2)
+        table.add_column("effect", no_wrap=True)
+        table.add_column("message", overflow="fold", ratio=5)
+        from .report.text import ORDER
+
+        for f in sorted(report.findings, key=lambda f: (f.schema, ORDER[f.severity], f.path)):
             style = STYLE[f.severity]
-            table.add_row(f"[{style}]{f.severity}[/]", f.rule, escape(f.schema), escape(f.path or "(type)"),
+            # The root type's last name keeps the column narrow; the full name is in the JSON.
+            short = f.schema.rsplit(".", 1)[-1] if "/" not in f.schema else f.schema.rsplit("/", 1)[-1]
+            table.add_row(f"[{style}]{f.severity}[/]", f.rule, escape(f"{short}.{f.path}" if f.path else short),
                           direction(f), escape(f.message))
         console.print(table)
     total = len(history.steps)
