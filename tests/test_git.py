@@ -207,3 +207,26 @@ def test_protobuf_imports_resolve_against_the_same_revision(repo, monkeypatch):
     assert new_common == 'syntax = "proto3";\n// old revision\n'  # the index still holds the old one
     assert old_include[0] != str(repo.path / "proto") and old_include[0].endswith("old/proto")
     assert new_include[0].endswith("new/proto")
+
+
+def test_git_run_finds_what_a_folder_run_finds(tmp_path):
+    """schemas_example/v1 committed, v2 in the working tree: the same findings as v1 against v2."""
+    import shutil
+    from pathlib import Path
+
+    from linter import api
+
+    example = Path(__file__).resolve().parent.parent / "schemas_example"
+    repo = Repo(tmp_path / "utility")
+    shutil.copytree(example / "v1", repo.path / "schemas")
+    repo.commit("v1")
+    shutil.rmtree(repo.path / "schemas")
+    shutil.copytree(example / "v2", repo.path / "schemas")
+
+    def key(report):
+        return sorted((f.rule, f.schema, f.path, f.severity, f.message) for f in report.findings)
+
+    in_git = revision.check("HEAD", cwd=repo.path)
+    in_folders = api.check(example / "v1", example / "v2")
+    assert in_git.findings and key(in_git) == key(in_folders)
+    assert in_git.compatibility == in_folders.compatibility
