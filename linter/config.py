@@ -119,7 +119,7 @@ class Config:
         display = display_path(self.file) if self.file else "(configuration)"
         return [
             Change("waiver-expired", display, "", w.until.isoformat(), None,
-                   Location(display, w.line), Location(display, w.line),
+                   None, Location(display, w.line),
                    {"rule": w.rule, "scope": w.scope, "until": w.until.isoformat(), "reason": w.reason})
             for w in self.waivers if w.expired(today)
         ]
