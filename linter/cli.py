@@ -34,7 +34,7 @@ def cli(ctx, debug):
 
 
 @cli.command()
-@click.argument("paths", nargs=-1, type=click.Path())
+@click.argument("paths", nargs=-1, type=click.Path(), metavar="OLD NEW | [PATHS]...")
 @click.option("--mode", type=click.Choice(MODES), default=None,
               help="The compatibility the change must keep.  [default: backward, or the configuration's]")
 @click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),

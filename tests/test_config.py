@@ -168,3 +168,14 @@ def test_the_documented_example_is_a_valid_configuration(tmp_path):
     assert loaded.mode == "backward" and len(loaded.waivers) == 2 and len(loaded.by_path) == 2
     assert loaded.mode_for(tmp_path / "schemas" / "archive" / "old" / "x.avsc", "backward") == "none"
     assert loaded.severities == {"S002": "error", "G002": "warning"}
+
+
+def test_encodings_consumers_and_include_reach_the_run(tmp_path):
+    (tmp_path / "evolint.toml").write_text(
+        'encodings = ["json"]\nconsumers = "registry/consumers.yaml"\ninclude = ["proto"]\n')
+    loaded = config.load(tmp_path / "evolint.toml")
+    policy = loaded.policy(tmp_path / "a.proto")
+    assert policy.encodings == ("json",)
+    assert loaded.policy(tmp_path / "a.proto", encodings=()).encodings == ()  # the command line wins
+    assert loaded.consumers == tmp_path / "registry" / "consumers.yaml"
+    assert loaded.include == (str(tmp_path / "proto"),)
