@@ -102,11 +102,31 @@ def _format_of(path: Path, display: str, forced: str | None) -> str:
     return forced or detect(path, display)
 
 
+def _preload(pairs_: list[Pair], format: str | None, options: Options,
+             roots: tuple[Path, Path] | None) -> dict[str, Schema]:
+    """Schemas of adapters that load one side's files together (``load_many``), by display name."""
+    loaded: dict[str, Schema] = {}
+    both = [p for p in pairs_ if p.old is not None and p.new is not None]
+    by_format: dict[str, list[Pair]] = {}
+    for pair in both:
+        by_format.setdefault(_format_of(pair.old, pair.old_display, format), []).append(pair)
+    for fmt, group in by_format.items():
+        module = adapter(fmt)
+        if not hasattr(module, "load_many") or len(group) < 2:
+            continue
+        for side, root in (("old", roots[0] if roots else None), ("new", roots[1] if roots else None)):
+            files = [(getattr(p, side), getattr(p, side + "_display")) for p in group]
+            loaded.update(module.load_many(files, options, root=root))
+    return loaded
+
+
 def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None = None,
-            options: Options | None = None) -> list[Comparison]:
+            options: Options | None = None, roots: tuple[Path, Path] | None = None) -> list[Comparison]:
     options = options or Options()
     cat = catalogue.load()
     comparisons = []
+    pairs_ = list(pairs_)
+    preloaded = _preload(pairs_, format, options, roots)
     for pair in pairs_:
         if pair.old is None or pair.new is None:
             present = pair.new if pair.old is None else pair.old
@@ -122,8 +142,8 @@ def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None
             raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
                              pair.new_display)
         module = adapter(fmt_old)
-        old_schema = module.load(pair.old, pair.old_display, options)
-        new_schema = module.load(pair.new, pair.new_display, options)
+        old_schema = preloaded.get(pair.old_display) or module.load(pair.old, pair.old_display, options)
+        new_schema = preloaded.get(pair.new_display) or module.load(pair.new, pair.new_display, options)
         changes = module.diff(old_schema, new_schema)
         findings = engine.judge(changes, cat, policy)
         comparisons.append(Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings),
@@ -132,24 +152,35 @@ def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None
 
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
-          include: Iterable[str] = (), policy: engine.Policy | None = None,
-          options: Options | None = None, consumers: str | Path | None = None) -> Report:
+          include: Iterable[str] = (), encodings: Iterable[str] = (),
+          policy: engine.Policy | None = None, options: Options | None = None,
+          consumers: str | Path | None = None, witness: bool = False) -> Report:
     """Compare OLD with NEW (two files or two directories) and classify every change.
 
+    ``encodings`` names further encodings whose effect counts toward the verdict (Protobuf:
+    ``"json"``, the proto3 JSON mapping); the binary encoding always counts.
     ``consumers`` names a consumer registry (YAML): the report then says which consumers
-    read what changed and which of them must be told.
+    read what changed and which of them must be told. ``witness=True`` attaches to each
+    finding that breaks a direction a datum showing it, confirmed by running the real
+    codec (``linter.witness``).
     """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
-    policy = policy or engine.Policy(mode=mode)
+    policy = policy or engine.Policy(mode=mode, encodings=tuple(encodings))
     options = options or Options(include=tuple(include))
     registry = None
     if consumers is not None:
         from . import consumers as impact
 
         registry = impact.load(consumers)  # a bad registry fails before any schema is read
-    comparisons = compare(pairs(old, new), policy, format=format, options=options)
-    report = Report(mode=policy.mode, comparisons=comparisons)
+    roots = (Path(old), Path(new)) if Path(old).is_dir() and Path(new).is_dir() else None
+    comparisons = compare(pairs(old, new), policy, format=format, options=options, roots=roots)
+    if witness:
+        from .witness import attach
+
+        comparisons = attach(comparisons, options)
+    settings = {"encodings": list(policy.encodings)} if policy.encodings else {}
+    report = Report(mode=policy.mode, comparisons=comparisons, settings=settings)
     if registry is not None:
         impact.apply(report, registry, warn_unmatched=Path(old).is_dir())
     return report

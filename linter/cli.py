@@ -15,6 +15,7 @@ from .model import MODES
 
 OUTPUTS = ("text", "json")
 FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
+ENCODINGS = ("json",)
 
 
 class Failed(Exception):
@@ -42,16 +43,23 @@ def cli(ctx, debug):
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
               help="Add a Protobuf import path (repeatable).")
+@click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
+              help="Also count this encoding's effect toward the verdict (Protobuf: json, the proto3 "
+                   "JSON mapping; the binary encoding always counts). Repeatable.")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
 @click.option("--consumers", type=click.Path(), default=None,
               help="Consumer registry (YAML): say who reads what changed and who must be told.")
-def check(old, new, mode, format_, include, output, consumers):
+@click.option("--witness", is_flag=True,
+              help="Show, for each finding that breaks a direction, a datum that demonstrates it "
+                   "(confirmed by running the codec).")
+def check(old, new, mode, format_, include, encodings, output, consumers, witness):
     """Compare OLD with NEW (two files, or two directories paired by relative path)."""
     from .api import check as run_check
     from .report import render
 
-    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
+    report = run_check(old, new, mode=mode, format=format_, include=include, encodings=encodings,
+                       consumers=consumers, witness=witness)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)
 
@@ -80,6 +88,29 @@ def announce(old, new, consumers, mode, format_, include, output):
 
 
 @cli.command()
+@click.argument("old", type=click.Path())
+@click.argument("new", type=click.Path())
+@click.option("--samples", type=click.IntRange(1, 100_000), default=200, show_default=True,
+              help="Random data per direction and root type.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Seed of the random data.")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
+              help="Report format.")
+def verify(old, new, samples, seed, format_, include, output):
+    """Test the static verdict of OLD -> NEW against the real codecs with random data."""
+    from .verify import render as render_verify
+    from .verify import verify as run_verify
+
+    report = run_verify(old, new, samples=samples, seed=seed, format=format_, include=include,
+                        progress=sys.stderr.isatty())
+    render_verify(report, output, sys.stdout)
+    raise Failed(report.exit_code)
+
+
+@cli.command()
 @click.argument("rule_id", required=False)
 @click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True)
 def rules(rule_id, output):
@@ -100,6 +131,12 @@ def main(argv=None) -> None:
         status = exc.status
     except InputError as exc:
         click.echo(f"evolint: error: {exc}", err=True)
+        status = 2
+    except RecursionError:
+        # Absurdly deep input (nesting or chains of types beyond the interpreter's limit) is bad
+        # input, not a crash: refuse it in one line.
+        click.echo("evolint: error: the schemas nest types too deeply for evolint to compare; "
+                   "flatten the nesting or split the file", err=True)
         status = 2
     except click.exceptions.Abort:
         click.echo("evolint: aborted", err=True)
