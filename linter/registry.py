@@ -69,9 +69,23 @@ def load(path: str | Path) -> Registry:
     _check_nodes(root, display)
     import yaml
 
-    data = yaml.safe_load(text)  # the nodes passed the checks above, so this builds plain data
+    try:
+        data = yaml.safe_load(text)  # the nodes passed the checks above, so this builds plain data
+    except yaml.YAMLError as exc:  # e.g. a mapping used as a key ("? ..."): not plain data
+        raise _yaml_error(exc, display) from None
     _validate(data, root, display)
     return _build(data, root, display)
+
+
+def _yaml_error(exc, display: str) -> InputError:
+    import yaml
+
+    if isinstance(exc, yaml.MarkedYAMLError):
+        mark = exc.problem_mark or exc.context_mark
+        problem = " ".join(p for p in (exc.context, exc.problem) if p)
+        return InputError(f"invalid YAML: {problem}", display,
+                          mark.line + 1 if mark else None, mark.column + 1 if mark else None)
+    return InputError(f"invalid YAML: {exc}", display)
 
 
 def _compose(text: str, display: str):
@@ -79,13 +93,8 @@ def _compose(text: str, display: str):
 
     try:
         return yaml.compose(text, Loader=yaml.SafeLoader)
-    except yaml.MarkedYAMLError as exc:
-        mark = exc.problem_mark or exc.context_mark
-        problem = " ".join(p for p in (exc.context, exc.problem) if p)
-        raise InputError(f"invalid YAML: {problem}", display,
-                         mark.line + 1 if mark else None, mark.column + 1 if mark else None) from None
     except yaml.YAMLError as exc:
-        raise InputError(f"invalid YAML: {exc}", display) from None
+        raise _yaml_error(exc, display) from None
     except RecursionError:
         raise InputError("YAML nested too deeply to read", display) from None
 

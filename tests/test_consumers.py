@@ -110,6 +110,9 @@ BAD = {
                    + "consumers: *g\n", 1, "expands to more than 100000 values"),
     "self-reference": ("consumers: &a [*a]\n", 1, "refers to itself"),
     "deep nesting": ("consumers: " + "[" * 1200 + "]" * 1200 + "\n", None, "nested too deeply"),
+    # found by the fuzz suite: a mapping used as a key composes, but is not plain data
+    "mapping as a key": ("consumers:\n  - name: a\n    reads:\n      - schema: x\n    ?  fields: [a]\n",
+                         5, "unhashable key"),
 }
 
 
