@@ -122,10 +122,12 @@ class Differ:
             self.changes.append(Change(kind, schema, path, old, new, old_loc, new_loc,
                                        {"type": type_name, **facts}))
 
-    def annotations(self, type_name: str, leaf: str | None, old_ann, new_ann, old_loc, new_loc):
+    def annotations(self, type_name: str, leaf: str | None, old_ann, new_ann, old_loc, new_loc, **types):
+        """Unit and meaning changes; ``types`` passes a field's message annotations (a unit is inherited)."""
         for schema, prefix in self.targets(type_name):
             path = ".".join(p for p in (prefix, leaf) if p)
-            self.changes.extend(semantics.annotation_changes(schema, path, old_ann, new_ann, old_loc, new_loc))
+            self.changes.extend(semantics.annotation_changes(schema, path, old_ann, new_ann, old_loc, new_loc,
+                                                             **types))
 
     # -- the walk ---------------------------------------------------------------------------
 
@@ -267,7 +269,7 @@ class Differ:
         if f.is_map and g.is_map:
             self.map_entries(a, f, g)
         self.cardinality(name, leaf, f, g, base, types)
-        self.annotations(name, leaf, f.ann, g.ann, f.loc, g.loc)
+        self.annotations(name, leaf, f.ann, g.ann, f.loc, g.loc, old_type=a.ann, new_type=b.ann)
 
     def type_change(self, f: Field, g: Field) -> str | None:
         if f.is_map != g.is_map:
