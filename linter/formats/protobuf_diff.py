@@ -188,8 +188,18 @@ class Differ:
         pairs = []
         left = dict(a.fields)
         right = dict(b.fields)
+        # A name kept with its type but given another number is that field renumbered (fields
+        # that swapped numbers are two renumberings, not two reuses); otherwise pair by number.
+        new_by_name = {g.name: g for g in b.fields.values()}
+        moved = [(f, new_by_name[f.name]) for f in a.fields.values()
+                 if f.name in new_by_name and new_by_name[f.name].number != f.number
+                 and scalar_change(f.type, new_by_name[f.name].type) is None
+                 and self._same_type(f, new_by_name[f.name])]
+        renumbered = {f.number for f, _ in moved}
+        taken = {g.number for _, g in moved}
         for number in sorted(a.fields.keys() & b.fields.keys()):
-            pairs.append((left.pop(number), right.pop(number)))
+            if number not in renumbered and number not in taken:
+                pairs.append((left.pop(number), right.pop(number)))
         for number, f in sorted(left.items()):
             match = [g for g in right.values() if g.name == f.name]
             if match:
