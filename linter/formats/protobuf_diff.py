@@ -45,7 +45,7 @@ KINDS = frozenset({
     "protobuf-enum-value-renamed", "protobuf-enum-alias-added", "protobuf-enum-alias-removed",
     "protobuf-enum-became-closed", "protobuf-enum-became-open", "protobuf-enum-default-changed",
     "protobuf-message-added", "protobuf-message-removed", "protobuf-message-renamed",
-    "protobuf-message-moved-package", "protobuf-enum-added", "protobuf-enum-removed",
+    "protobuf-nested-message-removed", "protobuf-enum-added", "protobuf-enum-removed",
     "protobuf-enum-renamed", "protobuf-service-added", "protobuf-service-removed",
     "protobuf-service-renamed", "protobuf-method-added", "protobuf-method-removed",
     "protobuf-method-renamed", "protobuf-method-request-changed", "protobuf-method-response-changed",
@@ -143,7 +143,8 @@ class Differ:
         for a, b in pairs:
             self.message(a, b)
         for m in removed:
-            self.emit("protobuf-message-removed", m.full_name, None, m.loc, None, old=m.full_name,
+            kind = "protobuf-message-removed" if m.parent is None else "protobuf-nested-message-removed"
+            self.emit(kind, m.full_name, None, m.loc, None, old=m.full_name,
                       message=m.full_name)
         for m in added:
             self.emit("protobuf-message-added", m.full_name, None, None, m.loc, new=m.full_name,
@@ -181,8 +182,8 @@ class Differ:
     def message(self, a: Message, b: Message):
         name = a.full_name
         if a.full_name != b.full_name and not self.moved_with_package(a, b):
-            kind = "protobuf-message-moved-package" if a.package != b.package else "protobuf-message-renamed"
-            self.emit(kind, name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
+            # Within one file pair a package move is the file's package change (reported once).
+            self.emit("protobuf-message-renamed", name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
                       old_name=a.full_name, new_name=b.full_name)
         self.annotations(name, None, a.ann, b.ann, a.loc, b.loc)
         pairs = []
