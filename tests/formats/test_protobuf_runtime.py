@@ -26,7 +26,7 @@ CASES = Path(__file__).resolve().parent.parent / "cases" / "protobuf"
 # Breaks that live outside the bytes of one message, so no round trip can show them:
 # services and type names (RPC paths, Any type URLs), meaning (semantic rules), and proto2
 # required, which the Python runtime does not enforce on parse (shared/FACTS.md).
-NOT_IN_THE_BYTES = {"P101", "P102", "P103", "P110", "P111", "P112", "P113", "P114", "P115", "P116",
+NOT_IN_THE_BYTES = {"P101", "P102", "P110", "P111", "P112", "P113", "P114", "P115", "P116",
                     "P117", "P118", "P120", "P121", "P069", "P085", "P090", "P002", "P005", "P067",
                     "P068",
                     # a reserved number or name matters for data older than OLD, which no draw holds
