@@ -219,3 +219,15 @@ def test_example_scenario_service_notice():
     assert report.compatibility.value == "breaking" and not report.passed
     schema = adapter.load(root / "v1" / "service_notice.json", "service_notice.json", Options())
     assert "expected_duration" in schema.fields["urn:utility:service-notice"]
+
+
+def test_undecided_counts_as_breaking_unless_the_policy_says_otherwise():
+    from linter.engine import Policy
+
+    case = Path(__file__).resolve().parents[1] / "cases" / "jsonschema" / "pattern-changed"
+    strict = linter.check(case / "old.json", case / "new.json", mode="backward")
+    assert strict.compatibility.value == "breaking" and not strict.passed
+    lenient = linter.check(case / "old.json", case / "new.json",
+                           policy=Policy(mode="backward", undecided="compatible"))
+    (finding,) = lenient.findings
+    assert finding.undecided and lenient.compatibility.value == "full" and lenient.passed
