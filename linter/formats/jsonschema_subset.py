@@ -184,9 +184,37 @@ def shared(a: Norm, b: Norm, t: str) -> bool:
 
 # ---------------------------------------------------------------- keywords for every type
 
+def json_type(value) -> str:
+    if value is None:
+        return "null"
+    if isinstance(value, bool):
+        return "boolean"
+    if isinstance(value, int) or (isinstance(value, float) and value.is_integer()):
+        return "integer"
+    return {float: "number", str: "string", list: "array", dict: "object"}.get(type(value), "?")
+
+
+def admitted(n: Norm) -> dict | None:
+    """The enum values this node's types admit (canonical key -> value), or None: no enum."""
+    if n.enum is None:
+        return None
+    return {canonical(v): v for v in n.enum if covered(json_type(v), n.types)}
+
+
 def cmp_type(ctx, a, b, path):
-    widened = sorted(t for t in b.types if not covered(t, a.types))
-    narrowed = sorted(t for t in a.types if not covered(t, b.types))
+    # type and enum together define the value set; with an enum it is finite, so the
+    # comparison looks at the values each side admits rather than at the type names.
+    xa, xb = admitted(a), admitted(b)
+    if xa is not None:
+        types_a = {json_type(v) for v in xa.values()}
+    else:
+        types_a = a.types
+    if xb is not None:
+        types_b = {json_type(v) for v in xb.values()}
+    else:
+        types_b = b.types
+    widened = sorted(t for t in types_b if not covered(t, a.types)) if xa is None else []
+    narrowed = sorted(t for t in types_a if not covered(t, b.types)) if xb is None else []
     if widened:
         ctx.emit("jsonschema-type-widened", path, a, b, "/type", a.types, b.types, types=widened)
     if narrowed:
@@ -197,16 +225,15 @@ def cmp_enum(ctx, a, b, path):
     if a.enum is None and b.enum is None:
         return
     kw = "/enum" if "enum" in (b.node.value if isinstance(b.node.value, dict) else {}) else "/const"
-    if a.enum is None:
-        ctx.emit("jsonschema-enum-introduced", path, a, b, kw, None, list(b.enum), values=list(b.enum))
+    xa, xb = admitted(a), admitted(b)
+    if xa is None:
+        ctx.emit("jsonschema-enum-introduced", path, a, b, kw, None, list(b.enum), values=list(xb.values()))
         return
-    if b.enum is None:
-        ctx.emit("jsonschema-enum-dropped", path, a, b, kw, list(a.enum), None, values=list(a.enum))
+    if xb is None:  # values the new types no longer admit: cmp_type reports them
+        ctx.emit("jsonschema-enum-dropped", path, a, b, kw, list(a.enum), None, values=list(xa.values()))
         return
-    ka = {canonical(v): v for v in a.enum}
-    kb = {canonical(v): v for v in b.enum}
-    added = [v for k, v in kb.items() if k not in ka]
-    removed = [v for k, v in ka.items() if k not in kb]
+    added = [v for k, v in xb.items() if k not in xa]
+    removed = [v for k, v in xa.items() if k not in xb]
     if added:
         ctx.emit("jsonschema-enum-value-added", path, a, b, kw, list(a.enum), list(b.enum), values=added)
     if removed:
@@ -553,8 +580,8 @@ def cmp_remote(ctx, a, b, path):
     if a.remote == b.remote:
         ctx.emit("jsonschema-remote-reference-unchanged", path, a, b, "/$ref", uri=", ".join(a.remote))
         return
-    for uri in sorted(set(a.remote) ^ set(b.remote)) or sorted(set(a.remote)):
-        ctx.emit("jsonschema-remote-reference-not-followed", path, a, b, "/$ref", uri=uri)
+    ctx.emit("jsonschema-remote-reference-not-followed", path, a, b, "/$ref",
+             uri=", ".join(sorted(set(a.remote) ^ set(b.remote))))
 
 
 # ---------------------------------------------------------------- annotations
