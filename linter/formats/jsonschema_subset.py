@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Any
 
-from ..model import Change
+from ..model import Change, Location
 from .jsonschema_normal import ALL, Norm, Node, canonical, normalise
 
 KINDS = frozenset({
@@ -89,8 +89,29 @@ class Ctx:
         facts.setdefault("old_value", show(old))
         facts.setdefault("new_value", show(new))
         self.changes.append(Change(kind, self.schema, path, show(old), show(new),
-                                   a.node.location() if a is not None else None,
-                                   b.node.location() if b is not None else None, facts))
+                                   where(a, keyword), where(b, keyword), facts))
+
+
+def where(n: Norm | None, keyword: str):
+    """The line of the keyword's value where it is an object or array, else of the schema."""
+    if n is None:
+        return None
+    value = n.node.value
+    target = None
+    for part in keyword.lstrip("/").split("/") if keyword.strip("/") else ():
+        part = part.replace("~1", "/").replace("~0", "~")
+        if isinstance(value, dict) and part in value:
+            value = value[part]
+        elif isinstance(value, list) and part.isdigit() and int(part) < len(value):
+            value = value[int(part)]
+        else:
+            break
+        if isinstance(value, (dict, list)) and value:
+            target = value
+    if target is None or n.node.doc.sourcemap is None:
+        return n.node.location()
+    found = n.node.doc.sourcemap.locate(target)
+    return Location(n.node.doc.display, *found) if found else n.node.location()
 
 
 def show(value):
