@@ -215,11 +215,34 @@ def json_type(value) -> str:
     return {float: "number", str: "string", list: "array", dict: "object"}.get(type(value), "?")
 
 
+# Keywords on values themselves (no subschemas): enum values are checked against them.
+SCALAR = ("minimum", "maximum", "exclusiveMinimum", "exclusiveMaximum", "multipleOf",
+          "minLength", "maxLength", "pattern", "minItems", "maxItems", "uniqueItems",
+          "minProperties", "maxProperties", "required")
+
+
 def admitted(n: Norm) -> dict | None:
-    """The enum values this node's types admit (canonical key -> value), or None: no enum."""
+    """The enum values this node admits by its type and scalar keywords (canonical key ->
+    value), or None where it has no enum. Checked with jsonschema's own validator."""
     if n.enum is None:
         return None
-    return {canonical(v): v for v in n.enum if covered(json_type(v), n.types)}
+    values = {canonical(v): v for v in n.enum if covered(json_type(v), n.types)}
+    node = n.node.value
+    local = {k: node[k] for k in SCALAR if isinstance(node, dict) and k in node}
+    if local and values:
+        from .jsonschema import validator_class
+
+        check = validator_class(n.node.draft)(local)
+        try:
+            values = {k: v for k, v in values.items() if check.is_valid(v)}
+        except Exception:  # noqa: BLE001 - a pattern the validator cannot compile: keep all
+            pass
+    return values
+
+
+def both_enums(a: Norm, b: Norm) -> bool:
+    """With an enum on both sides the value sets are finite and compared exactly (cmp_enum)."""
+    return a.enum is not None and b.enum is not None
 
 
 def cmp_type(ctx, a, b, path):
@@ -285,7 +308,7 @@ def _looser(x, y, lower: bool) -> bool:
 
 
 def cmp_numbers(ctx, a, b, path):
-    if not shared(a, b, "number"):
+    if not shared(a, b, "number") or both_enums(a, b):
         return
     for attr, name, lower in (("lower", "minimum", True), ("upper", "maximum", False)):
         x, y = getattr(a, attr), getattr(b, attr)
@@ -307,7 +330,7 @@ def cmp_numbers(ctx, a, b, path):
 
 
 def cmp_strings(ctx, a, b, path):
-    if not shared(a, b, "string"):
+    if not shared(a, b, "string") or both_enums(a, b):
         return
     _count(ctx, a, b, path, "min_length", "/minLength", "min-length", True)
     _count(ctx, a, b, path, "max_length", "/maxLength", "max-length", False)
