@@ -334,6 +334,19 @@ def _merged(node: Node, target: Node) -> Node | None:
     return Node(cache[key][0], node.resolver, node.pointer, node.doc, node.draft, origin=node.value)
 
 
+def _check_pattern(pattern: str, node: Node) -> None:
+    """A pattern that does not compile is bad input (the metaschema's "format": "regex" is only
+    an annotation there), not a constraint to compare."""
+    import re
+
+    try:
+        re.compile(pattern)
+    except re.error as exc:
+        where = node.location()
+        raise InputError(f"pattern {pattern!r} is not a regular expression: {exc.msg}",
+                         where.file, where.line, where.column) from None
+
+
 def normalise(node: Node) -> Norm:
     notes: dict = {}
     node, conjuncts, remote = deref(node, notes)
@@ -375,6 +388,8 @@ def normalise(node: Node) -> Norm:
     n.min_length = get("minLength", 0)
     n.max_length = get("maxLength")
     n.pattern = get("pattern")
+    if isinstance(n.pattern, str):
+        _check_pattern(n.pattern, node)
     n.min_items = get("minItems", 0)
     n.max_items = get("maxItems")
     n.unique_items = get("uniqueItems", False) is True
