@@ -109,6 +109,9 @@ BAD = {
                    + "".join(f"{n}: &{n} [{', '.join(['*' + p] * 10)}]\n" for p, n in zip("abcdef", "bcdefg"))
                    + "consumers: *g\n", 1, "expands to more than 100000 values"),
     "self-reference": ("consumers: &a [*a]\n", 1, "refers to itself"),
+    "complex key": ("consumers:\n  - ? name: billing\n    contact: b@example.org\n", 2, "key must be plain text"),
+    "bad timestamp": ("consumers:\n  - name: 2026-13-45\n", 2, "invalid !!timestamp value '2026-13-45'"),
+    "bad int": ("consumers:\n  - name: !!int twelve\n", 2, "invalid !!int value 'twelve'"),
     "deep nesting": ("consumers: " + "[" * 1200 + "]" * 1200 + "\n", None, "nested too deeply"),
 }
 
@@ -128,6 +131,12 @@ def test_anchors_can_share_field_lists(tmp_path):
                                     "  - {name: a, contact: a@example.org, reads: [{schema: s, fields: *meter}]}\n"
                                     "  - {name: b, contact: b@example.org, reads: [{schema: s, fields: *meter}]}\n"))
     assert [[p.text for p in c.reads[0].fields] for c in registry.consumers] == [["meter_id", "volume"]] * 2
+
+
+def test_merge_keys_share_whole_entries(tmp_path):
+    registry = consumers.load(write(tmp_path, "x-base: &base {contact: a@example.org, reads: [{schema: s}]}\n"
+                                    "consumers:\n  - <<: *base\n    name: a\n  - <<: *base\n    name: b\n"))
+    assert [(c.name, c.contact) for c in registry.consumers] == [("a", "a@example.org"), ("b", "a@example.org")]
 
 
 def test_an_error_names_the_entry(tmp_path):
