@@ -4,6 +4,7 @@ Impact is tested on synthetic findings, so it does not depend on any format adap
 the end-to-end checks on schemas_example/ are in tests/test_announce.py.
 """
 import json
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -194,6 +195,16 @@ def test_semantic_and_undecided_findings_are_told_whatever_the_needs(registry):
     assert verdicts(found) == {"leak-detection": "must-be-told", "billing": "must-be-told",
                                "network-planning": "unaffected", "data-archive": "must-be-told"}
     assert found[1].reasons[0].semantic and found[0].reasons[0].undecided
+
+
+def test_without_needs_a_consumer_relies_on_the_mode_of_each_pair(registry):
+    # Configuration may set a mode per path; billing has no needs of its own.
+    strict = replace(comparison(finding("volume", Compat.BACKWARD)), mode="full")
+    found = consumers.impacts([strict], registry, "backward")
+    assert verdicts(found)["billing"] == "must-be-told"
+    assert found[1].reasons[0].breaks == ("forward",)
+    loose = replace(strict, mode="none")
+    assert verdicts(consumers.impacts([loose], registry, "backward"))["billing"] == "informed"
 
 
 def test_full_needs_are_broken_by_either_direction(registry):
