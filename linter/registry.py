@@ -71,8 +71,10 @@ def load(path: str | Path) -> Registry:
 
     try:
         data = yaml.safe_load(text)  # the nodes passed the checks above, so this builds plain data
-    except yaml.YAMLError as exc:  # what the composer lets through, e.g. a bad timestamp
+    except yaml.YAMLError as exc:  # what only the builder sees, e.g. `<<` merging a list
         raise _yaml_error(exc, display) from None
+    except (ValueError, TypeError, OverflowError) as exc:  # a value check above missed
+        raise InputError(f"invalid YAML value: {exc}", display) from None
     _validate(data, root, display)
     return _build(data, root, display)
 
