@@ -104,10 +104,30 @@ def _format_of(path: Path, display: str, forced: str | None) -> str:
     return forced or detect(path, display)
 
 
+def _preload(pairs_: list[Pair], format: str | None, options: Options, old_options: Options | None,
+             roots: tuple[Path, Path] | None) -> dict[str, Schema]:
+    """Schemas of adapters that load one side's files together (``load_many``), by display name."""
+    loaded: dict[str, Schema] = {}
+    both = [p for p in pairs_ if p.old is not None and p.new is not None]
+    by_format: dict[str, list[Pair]] = {}
+    for pair in both:
+        by_format.setdefault(_format_of(pair.old, pair.old_display, format), []).append(pair)
+    for fmt, group in by_format.items():
+        module = adapter(fmt)
+        if not hasattr(module, "load_many") or len(group) < 2:
+            continue
+        for side, root in (("old", roots[0] if roots else None), ("new", roots[1] if roots else None)):
+            files = [(getattr(p, side), getattr(p, side + "_display")) for p in group]
+            side_options = (old_options or options) if side == "old" else options
+            loaded.update(module.load_many(files, side_options, root=root))
+    return loaded
+
+
 def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: Options,
-                old_options: Options | None = None) -> Comparison:
+                old_options: Options | None = None, preloaded: dict[str, Schema] | None = None) -> Comparison:
     """Compare one pair of files under ``policy`` (``old_options`` for the OLD side, if it differs)."""
     cat = catalogue.load()
+    preloaded = preloaded or {}
     if pair.old is None or pair.new is None:
         present = pair.new if pair.old is None else pair.old
         display = pair.new_display if pair.old is None else pair.old_display
@@ -121,8 +141,8 @@ def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: 
         raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
                          pair.new_display)
     module = adapter(fmt_old)
-    old_schema = module.load(pair.old, pair.old_display, old_options or options)
-    new_schema = module.load(pair.new, pair.new_display, options)
+    old_schema = preloaded.get(pair.old_display) or module.load(pair.old, pair.old_display, old_options or options)
+    new_schema = preloaded.get(pair.new_display) or module.load(pair.new, pair.new_display, options)
     changes = module.diff(old_schema, new_schema)
     findings = engine.judge(changes, cat, policy)
     return Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings), policy.mode,
@@ -131,39 +151,65 @@ def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: 
 
 def compare(pairs_: Iterable[Pair], policy: engine.Policy | Callable[[Pair], engine.Policy], *,
             format: str | None = None, options: Options | None = None,
-            old_options: Options | None = None, jobs: int | None = None) -> list[Comparison]:
+            old_options: Options | None = None, roots: tuple[Path, Path] | None = None,
+            jobs: int | None = None) -> list[Comparison]:
     """Compare every pair, in order; ``policy`` may be a function of the pair (per-path settings).
 
-    Many pairs are compared on several processes (linter/pool.py); the result is the same.
+    Pairs an adapter loads together (``load_many``: one protoc call per side) are compared
+    here; the others, when there are many, on several processes (linter/pool.py). Either
+    way the result is the same, in the same order.
     """
     from .pool import run_all
 
     options = options or Options()
     tasks = [(pair, policy(pair) if callable(policy) else policy) for pair in pairs_]
-    return run_all(compare_one, tasks, format, options, old_options, jobs=jobs)
+    preloaded = _preload([t[0] for t in tasks], format, options, old_options, roots)
+    results: list[Comparison | None] = [None] * len(tasks)
+    apart = []
+    for i, (pair, pair_policy) in enumerate(tasks):
+        if pair.old_display in preloaded or pair.new_display in preloaded:
+            results[i] = compare_one(pair, pair_policy, format, options, old_options, preloaded)
+        else:
+            apart.append(i)
+    done = run_all(compare_one, [tasks[i] for i in apart], format, options, old_options, jobs=jobs)
+    for i, comparison in zip(apart, done):
+        results[i] = comparison
+    return results
 
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
-          include: Iterable[str] = (), policy: engine.Policy | Callable[[Pair], engine.Policy] | None = None,
-          options: Options | None = None, consumers: str | Path | None = None,
+          include: Iterable[str] = (), encodings: Iterable[str] = (),
+          policy: engine.Policy | Callable[[Pair], engine.Policy] | None = None,
+          options: Options | None = None, consumers: str | Path | None = None, witness: bool = False,
           jobs: int | None = None) -> Report:
     """Compare OLD with NEW (two files or two directories) and classify every change.
 
+    ``encodings`` names further encodings whose effect counts toward the verdict (Protobuf:
+    ``"json"``, the proto3 JSON mapping); the binary encoding always counts.
     ``policy`` may be a function of each pair (settings configured per path).
     ``consumers`` names a consumer registry (YAML): the report then says which consumers
-    read what changed and which of them must be told.
+    read what changed and which of them must be told. ``witness=True`` attaches to each
+    finding that breaks a direction a datum showing it, confirmed by running the real
+    codec (``linter.witness``).
     """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
-    policy = policy or engine.Policy(mode=mode)
+    policy = policy or engine.Policy(mode=mode, encodings=tuple(encodings))
     options = options or Options(include=tuple(include))
     registry = None
     if consumers is not None:
         from . import consumers as impact
 
         registry = impact.load(consumers)  # a bad registry fails before any schema is read
-    comparisons = compare(pairs(old, new), policy, format=format, options=options, jobs=jobs)
-    report = Report(mode=policy.mode if isinstance(policy, engine.Policy) else mode, comparisons=comparisons)
+    roots = (Path(old), Path(new)) if Path(old).is_dir() and Path(new).is_dir() else None
+    comparisons = compare(pairs(old, new), policy, format=format, options=options, roots=roots, jobs=jobs)
+    if witness:
+        from .witness import attach
+
+        comparisons = attach(comparisons, options)
+    fixed = policy if isinstance(policy, engine.Policy) else None
+    settings = {"encodings": list(fixed.encodings)} if fixed and fixed.encodings else {}
+    report = Report(mode=fixed.mode if fixed else mode, comparisons=comparisons, settings=settings)
     if registry is not None:
         impact.apply(report, registry, warn_unmatched=Path(old).is_dir())
     return report

@@ -15,6 +15,7 @@ from .model import MODES
 
 OUTPUTS = ("text", "json", "sarif", "markdown", "annotations")
 FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
+ENCODINGS = ("json",)
 
 
 class Failed(Exception):
@@ -41,16 +42,22 @@ def cli(ctx, debug):
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
               help="Add a Protobuf import path (repeatable).")
+@click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
+              help="Also count this encoding's effect toward the verdict (Protobuf: json, the proto3 "
+                   "JSON mapping; the binary encoding always counts). Repeatable.")
 @click.option("--output", type=click.Choice(OUTPUTS), default="text", show_default=True,
               help="Report format.")
 @click.option("--consumers", type=click.Path(), default=None,
               help="Consumer registry (YAML): say who reads what changed and who must be told.")
+@click.option("--witness", is_flag=True,
+              help="Show, for each finding that breaks a direction, a datum that demonstrates it "
+                   "(confirmed by running the codec).")
 @click.option("--base", metavar="REF", default=None,
               help="Compare the working tree with this git revision; PATHS limit the files.")
 @click.option("--staged", is_flag=True, help="With git: compare the index (what will be committed), not the working tree.")
 @click.option("--config", "config_file", type=click.Path(dir_okay=False),
               help="Configuration file (default: the nearest evolint.toml or pyproject.toml [tool.evolint]).")
-def check(paths, mode, format_, include, output, consumers, base, staged, config_file):
+def check(paths, mode, format_, include, encodings, output, consumers, witness, base, staged, config_file):
     """Compare OLD with NEW (two files, or two directories paired by relative path).
 
     With --base REF or --staged: compare the working tree or the index with a git revision.
@@ -59,7 +66,8 @@ def check(paths, mode, format_, include, output, consumers, base, staged, config
     from .runs import run_check
 
     report = run_check(paths, mode=mode, format=format_, include=include, base=base, staged=staged,
-                       config_file=config_file, consumers=consumers)
+                       config_file=config_file, consumers=consumers, encodings=encodings or None,
+                       witness=witness)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)
 
@@ -84,6 +92,29 @@ def announce(old, new, consumers, mode, format_, include, output):
 
     report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
     render_announcement(report, sys.stdout, output)
+    raise Failed(report.exit_code)
+
+
+@cli.command()
+@click.argument("old", type=click.Path())
+@click.argument("new", type=click.Path())
+@click.option("--samples", type=click.IntRange(1, 100_000), default=200, show_default=True,
+              help="Random data per direction and root type.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Seed of the random data.")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
+              help="Report format.")
+def verify(old, new, samples, seed, format_, include, output):
+    """Test the static verdict of OLD -> NEW against the real codecs with random data."""
+    from .verify import render as render_verify
+    from .verify import verify as run_verify
+
+    report = run_verify(old, new, samples=samples, seed=seed, format=format_, include=include,
+                        progress=sys.stderr.isatty())
+    render_verify(report, output, sys.stdout)
     raise Failed(report.exit_code)
 
 
@@ -132,6 +163,12 @@ def main(argv=None) -> None:
         status = exc.status
     except InputError as exc:
         click.echo(f"evolint: error: {exc}", err=True)
+        status = 2
+    except RecursionError:
+        # Absurdly deep input (nesting or chains of types beyond the interpreter's limit) is bad
+        # input, not a crash: refuse it in one line.
+        click.echo("evolint: error: the schemas nest types too deeply for evolint to compare; "
+                   "flatten the nesting or split the file", err=True)
         status = 2
     except click.exceptions.Abort:
         click.echo("evolint: aborted", err=True)

@@ -132,12 +132,15 @@ def check(ref: str = "HEAD", paths: Iterable[str] = (), *, staged: bool = False,
         old_options = Options(include=_move_include(include, top, old_root))
         comparisons = compare(
             pairs, lambda pair: config.policy(where[pair], mode=mode, encodings=encodings),
-            format=format, options=options, old_options=old_options, jobs=jobs)
+            format=format, options=options, old_options=old_options, roots=(old_root, new_home), jobs=jobs)
     expired = expired_comparison(config, run_mode)
     if expired is not None:
         comparisons.append(expired)
     report = Report(mode=run_mode, comparisons=comparisons,
                     settings={"base": ref, "staged": staged})
+    counted = encodings if encodings is not None else config.encodings
+    if counted:
+        report.settings["encodings"] = list(counted)
     if skipped:
         report.warnings.append(f"skipped {len(skipped)} .json file(s) that are neither JSON Schema nor Avro: "
                                f"{', '.join(skipped[:5])}{' ...' if len(skipped) > 5 else ''} "

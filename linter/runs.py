@@ -23,10 +23,14 @@ def with_expired(report: api.Report, config: Config) -> api.Report:
 def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | None = None,
               include: Iterable[str] = (), base: str | None = None, staged: bool = False,
               config_file: str | None = None, encodings: tuple[str, ...] | None = None,
-              consumers: str | None = None, cwd: str | Path = ".") -> api.Report:
+              consumers: str | None = None, witness: bool = False, cwd: str | Path = ".") -> api.Report:
     paths = tuple(paths)
     config = discover(config_file, cwd)
     consumers = consumers or config.consumers
+    if (base is not None or staged) and witness:
+        # Witnesses reopen both files by their names, and the OLD side of a git run lives
+        # only in a temporary folder.
+        raise UsageError("--witness compares two paths; it does not combine with --base or --staged")
     if base is not None or staged:
         from . import consumers as impact
         from . import revision
@@ -43,5 +47,8 @@ def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | No
     report = api.check(
         old, new, mode=mode or config.mode or "backward", format=format,
         policy=lambda pair: config.policy(pair.new or pair.old, mode=mode, encodings=encodings),
-        options=api.Options(include=tuple(include) + config.include), consumers=consumers)
+        options=api.Options(include=tuple(include) + config.include), consumers=consumers, witness=witness)
+    counted = encodings if encodings is not None else config.encodings
+    if counted:
+        report.settings["encodings"] = list(counted)
     return with_expired(report, config)

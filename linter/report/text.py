@@ -62,6 +62,21 @@ def render_findings(console, report) -> None:
             where = _where(f)
             if where:
                 console.print(f"          [dim]{escape(where)}[/]")
+            if "witness" in f.extra:
+                _witness(console, f.extra["witness"])
+
+
+def _witness(console, w) -> None:
+    import json
+
+    from rich.markup import escape
+
+    mark = "[green]confirmed[/]" if w["confirmed"] else "[yellow]not confirmed[/]"
+    via = f" ({w['encoding']})" if w.get("encoding") else ""
+    console.print(f"          witness {w['direction']}{escape(via)}, {mark}: "
+                  f"{escape(json.dumps(w['datum'], ensure_ascii=False, default=str))}")
+    console.print(f"            [dim]written with {escape(w['writer'])}, read with {escape(w['reader'])}:[/] "
+                  f"{escape(w['outcome'])}")
 
 
 def summary_line(report) -> str:
