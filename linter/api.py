@@ -108,18 +108,18 @@ def _preload(pairs_: list[Pair], format: str | None, options: Options, old_optio
              roots: tuple[Path, Path] | None) -> dict[str, Schema]:
     """Schemas of adapters that load one side's files together (``load_many``), by display name."""
     loaded: dict[str, Schema] = {}
-    both = [p for p in pairs_ if p.old is not None and p.new is not None]
     by_format: dict[str, list[Pair]] = {}
-    for pair in both:
-        by_format.setdefault(_format_of(pair.old, pair.old_display, format), []).append(pair)
+    for pair in pairs_:
+        if pair.old is not None and pair.new is not None:
+            by_format.setdefault(_format_of(pair.old, pair.old_display, format), []).append(pair)
     for fmt, group in by_format.items():
         module = adapter(fmt)
         if not hasattr(module, "load_many") or len(group) < 2:
             continue
-        for side, root in (("old", roots[0] if roots else None), ("new", roots[1] if roots else None)):
+        for side, root, opts in (("old", roots[0] if roots else None, old_options or options),
+                                 ("new", roots[1] if roots else None, options)):
             files = [(getattr(p, side), getattr(p, side + "_display")) for p in group]
-            side_options = (old_options or options) if side == "old" else options
-            loaded.update(module.load_many(files, side_options, root=root))
+            loaded.update(module.load_many(files, opts, root=root))
     return loaded
 
 
@@ -151,37 +151,30 @@ def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: 
 
 def compare(pairs_: Iterable[Pair], policy: engine.Policy | Callable[[Pair], engine.Policy], *,
             format: str | None = None, options: Options | None = None,
-            old_options: Options | None = None, roots: tuple[Path, Path] | None = None,
-            jobs: int | None = None) -> list[Comparison]:
+            old_options: Options | None = None, jobs: int | None = None,
+            roots: tuple[Path, Path] | None = None) -> list[Comparison]:
     """Compare every pair, in order; ``policy`` may be a function of the pair (per-path settings).
 
-    Pairs an adapter loads together (``load_many``: one protoc call per side) are compared
-    here; the others, when there are many, on several processes (linter/pool.py). Either
-    way the result is the same, in the same order.
+    Many pairs are compared on several processes (linter/pool.py); the result is the same.
+    Formats that compile one side's files together (Protobuf: one protoc call per side) are
+    loaded first, in this process, and their pairs compared here.
     """
     from .pool import run_all
 
     options = options or Options()
+    pairs_ = list(pairs_)
     tasks = [(pair, policy(pair) if callable(policy) else policy) for pair in pairs_]
-    preloaded = _preload([t[0] for t in tasks], format, options, old_options, roots)
-    results: list[Comparison | None] = [None] * len(tasks)
-    apart = []
-    for i, (pair, pair_policy) in enumerate(tasks):
-        if pair.old_display in preloaded or pair.new_display in preloaded:
-            results[i] = compare_one(pair, pair_policy, format, options, old_options, preloaded)
-        else:
-            apart.append(i)
-    done = run_all(compare_one, [tasks[i] for i in apart], format, options, old_options, jobs=jobs)
-    for i, comparison in zip(apart, done):
-        results[i] = comparison
-    return results
+    preloaded = _preload(pairs_, format, options, old_options, roots)
+    if preloaded:
+        return [compare_one(pair, pol, format, options, old_options, preloaded) for pair, pol in tasks]
+    return run_all(compare_one, tasks, format, options, old_options, jobs=jobs)
 
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
           include: Iterable[str] = (), encodings: Iterable[str] = (),
           policy: engine.Policy | Callable[[Pair], engine.Policy] | None = None,
-          options: Options | None = None, consumers: str | Path | None = None, witness: bool = False,
-          jobs: int | None = None) -> Report:
+          options: Options | None = None, consumers: str | Path | None = None,
+          witness: bool = False, jobs: int | None = None) -> Report:
     """Compare OLD with NEW (two files or two directories) and classify every change.
 
     ``encodings`` names further encodings whose effect counts toward the verdict (Protobuf:
@@ -202,14 +195,15 @@ def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: s
 
         registry = impact.load(consumers)  # a bad registry fails before any schema is read
     roots = (Path(old), Path(new)) if Path(old).is_dir() and Path(new).is_dir() else None
-    comparisons = compare(pairs(old, new), policy, format=format, options=options, roots=roots, jobs=jobs)
+    comparisons = compare(pairs(old, new), policy, format=format, options=options, jobs=jobs, roots=roots)
     if witness:
         from .witness import attach
 
         comparisons = attach(comparisons, options)
-    fixed = policy if isinstance(policy, engine.Policy) else None
-    settings = {"encodings": list(fixed.encodings)} if fixed and fixed.encodings else {}
-    report = Report(mode=fixed.mode if fixed else mode, comparisons=comparisons, settings=settings)
+    counted = policy.encodings if isinstance(policy, engine.Policy) else tuple(encodings)
+    settings = {"encodings": list(counted)} if counted else {}
+    report = Report(mode=policy.mode if isinstance(policy, engine.Policy) else mode,
+                    comparisons=comparisons, settings=settings)
     if registry is not None:
         impact.apply(report, registry, warn_unmatched=Path(old).is_dir())
     return report

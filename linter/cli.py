@@ -66,7 +66,7 @@ def check(paths, mode, format_, include, encodings, output, consumers, witness, 
     from .runs import run_check
 
     report = run_check(paths, mode=mode, format=format_, include=include, base=base, staged=staged,
-                       config_file=config_file, consumers=consumers, encodings=encodings or None,
+                       config_file=config_file, encodings=encodings or None, consumers=consumers,
                        witness=witness)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)

@@ -132,7 +132,7 @@ def check(ref: str = "HEAD", paths: Iterable[str] = (), *, staged: bool = False,
         old_options = Options(include=_move_include(include, top, old_root))
         comparisons = compare(
             pairs, lambda pair: config.policy(where[pair], mode=mode, encodings=encodings),
-            format=format, options=options, old_options=old_options, roots=(old_root, new_home), jobs=jobs)
+            format=format, options=options, old_options=old_options, jobs=jobs)
     expired = expired_comparison(config, run_mode)
     if expired is not None:
         comparisons.append(expired)

@@ -27,11 +27,9 @@ def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | No
     paths = tuple(paths)
     config = discover(config_file, cwd)
     consumers = consumers or config.consumers
-    if (base is not None or staged) and witness:
-        # Witnesses reopen both files by their names, and the OLD side of a git run lives
-        # only in a temporary folder.
-        raise UsageError("--witness compares two paths; it does not combine with --base or --staged")
     if base is not None or staged:
+        if witness:
+            raise UsageError("--witness needs OLD and NEW paths; it does not combine with --base or --staged")
         from . import consumers as impact
         from . import revision
 
@@ -47,8 +45,9 @@ def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | No
     report = api.check(
         old, new, mode=mode or config.mode or "backward", format=format,
         policy=lambda pair: config.policy(pair.new or pair.old, mode=mode, encodings=encodings),
-        options=api.Options(include=tuple(include) + config.include), consumers=consumers, witness=witness)
+        options=api.Options(include=tuple(include) + config.include), consumers=consumers,
+        witness=witness)
     counted = encodings if encodings is not None else config.encodings
-    if counted:
+    if counted:  # the policy is per file, so name the encodings counted here
         report.settings["encodings"] = list(counted)
     return with_expired(report, config)

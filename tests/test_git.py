@@ -230,3 +230,22 @@ def test_git_run_finds_what_a_folder_run_finds(tmp_path):
     in_folders = api.check(example / "v1", example / "v2")
     assert in_git.findings and key(in_git) == key(in_folders)
     assert in_git.compatibility == in_folders.compatibility
+
+
+def test_protobuf_files_that_import_each_other_both_changed(repo):
+    """Both sides compile with their own revision of the imported file (real protoc)."""
+    pytest.importorskip("linter.formats.protobuf")
+    repo.write("proto/common.proto", 'syntax = "proto3";\npackage utility.telemetry;\n'
+                                     "message Pressure { double value = 1; }\n")
+    repo.write("proto/pump_status.proto", 'syntax = "proto3";\npackage utility.telemetry;\nimport "common.proto";\n'
+                                          "message PumpStatus {\n  string pump_id = 1;\n  Pressure outlet = 2;\n}\n")
+    repo.commit("telemetry")
+    repo.write("proto/common.proto", 'syntax = "proto3";\npackage utility.telemetry;\n'
+                                     "message Pressure { float value = 1; }\n")
+    repo.write("proto/pump_status.proto", 'syntax = "proto3";\npackage utility.telemetry;\nimport "common.proto";\n'
+                                          "message PumpStatus {\n  string pump_id = 1;\n  Pressure outlet = 2;\n"
+                                          "  int32 speed = 3;\n}\n")
+    report = revision.check("HEAD", cwd=repo.path)
+    got = {(f.schema, f.path) for f in report.findings}
+    assert got == {("utility.telemetry.Pressure", "value"), ("utility.telemetry.PumpStatus", "speed")}
+    assert report.compatibility.value == "breaking"
