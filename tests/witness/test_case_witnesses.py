@@ -43,14 +43,27 @@ def runnable(folder) -> bool:
 
 
 BREAKING = [p for p in case_dirs() if expected(p)["compatibility"] != "full" and runnable(p)]
-ALL = [p for p in case_dirs() if runnable(p)]
+# Disagreements verify found, kept visible (strict: the test fails once they are resolved).
+DISAGREE = {
+    # Protobuf language guide, Maps: "if there are duplicate map keys the last key seen is used";
+    # entries written as a repeated message with a repeated key lose all but the last when read
+    # as a map, so forward does not keep every value. The adapter calls the change full.
+    "protobuf/map-to-repeated": "duplicate keys of repeated entries collapse when read as a map",
+}
+ALL = [pytest.param(p, marks=pytest.mark.xfail(strict=True, reason=DISAGREE[f"{p.parent.name}/{p.name}"]))
+       if f"{p.parent.name}/{p.name}" in DISAGREE else p for p in case_dirs() if runnable(p)]
 
 
 def must_confirm(f) -> bool:
     if f["rule"].startswith("G") or f.get("undecided"):
         return False
-    if "does not check format" in f.get("witness", {}).get("outcome", ""):
+    outcome = f.get("witness", {}).get("outcome", "")
+    if "does not check format" in outcome:
         return False  # a format the installed jsonschema cannot check (an optional package)
+    if outcome.startswith("not shown by any datum") and any(
+            word in f.get("kind", "") for word in ("service", "method", "package", "message-renamed",
+                                                   "message-removed")):
+        return False  # services, methods and type names: no message carries them on the wire
     if f["semantic"]:
         details = f.get("details", {})
         return bool(details.get("old_unit") and details.get("new_unit"))
