@@ -73,12 +73,15 @@ def check(old, new, mode, format_, include, output, consumers, witness):
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(("markdown", "json")), default="markdown", show_default=True,
               help="Markdown to paste, or the same content as JSON.")
-def announce(old, new, consumers, mode, format_, include, output):
+@click.option("--witness", is_flag=True,
+              help="Add to each breaking change an example datum, confirmed by running the codec.")
+def announce(old, new, consumers, mode, format_, include, output, witness):
     """Write the announcement of a change: who must be told, and what changes for them."""
     from .announce import render as render_announcement
     from .api import check as run_check
 
-    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
+    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers,
+                       witness=witness)
     render_announcement(report, sys.stdout, output)
     raise Failed(report.exit_code)
 

@@ -35,6 +35,7 @@ class Result:
     departures: int = 0        # failures of the codec where the specification says data resolve
     example: Trial | None = None
     departure: str | None = None
+    semantic_only: bool = False  # breaking only by changes of meaning, which no codec shows
 
     @property
     def verdict(self) -> str:
@@ -49,6 +50,8 @@ class Result:
                "departures": self.departures, "verdict": self.verdict, "example": None}
         if self.departure:
             out["departure"] = self.departure
+        if self.semantic_only:
+            out["semantic_only"] = True
         if self.example is not None:
             out["example"] = {"datum": self.example.datum, "outcome": self.example.outcome}
         return out
@@ -79,9 +82,13 @@ class VerifyReport:
                 "results": [r.to_json() for r in self.results], "skipped": list(self.skipped)}
 
 
-def _static_ok(comparison: Comparison, root: str, direction: str) -> bool:
-    compat = meet_all(f.compatibility for f in comparison.findings if f.schema in (root, comparison.new,
-                                                                                    comparison.old))
+def _findings(comparison: Comparison, root: str):
+    return [f for f in comparison.findings if f.schema in (root, comparison.new, comparison.old)]
+
+
+def _static_ok(comparison: Comparison, root: str, direction: str, structural: bool = False) -> bool:
+    found = [f for f in _findings(comparison, root) if not (structural and (f.semantic or f.undecided))]
+    compat = meet_all(f.compatibility for f in found)
     return compat.backward if direction == "backward" else compat.forward
 
 
@@ -111,6 +118,7 @@ def sample(module, pair, comparison: Comparison, root: str, direction: str, samp
     writer, reader = pair.sides(direction)
     result = Result(comparison.old, comparison.new, comparison.format, root, direction,
                     _static_ok(comparison, root, direction))
+    result.semantic_only = not result.static_ok and _static_ok(comparison, root, direction, structural=True)
     # A string seed is hashed deterministically (random.seed, version 2).
     rng = random.Random(f"{seed}|{comparison.old}|{comparison.new}|{root}|{direction}")
     for _ in range(samples):
@@ -163,7 +171,7 @@ def render_text(report: VerifyReport, stream) -> None:
     console.print(f"[bold]evolint verify[/] · {report.samples} samples per direction · seed {report.seed}")
     for r in report.results:
         style = {"agree": "green", "bug": "bold red", "not-shown": "yellow"}[r.verdict]
-        static = "compatible" if r.static_ok else "breaking"
+        static = "compatible" if r.static_ok else ("breaking (meaning only)" if r.semantic_only else "breaking")
         console.print(f"  [{style}]{r.verdict:<9}[/] {r.direction:<8} [bold]{escape(r.schema)}[/]  "
                       f"[dim]{escape(r.old)} → {escape(r.new)}[/]  static {static}, "
                       f"{r.failures}/{r.samples} failed")
