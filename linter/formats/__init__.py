@@ -99,7 +99,8 @@ def looks_like_avro(data: Any) -> bool:
         return bool(data) and all(looks_like_avro(d) or isinstance(d, str) for d in data)
     if not isinstance(data, dict) or "$schema" in data:
         return False
-    return data.get("type") in AVRO_NAMED and ("name" in data or "fields" in data or "symbols" in data)
+    kind = data.get("type")  # any JSON value: a list or object here is not hashable
+    return isinstance(kind, str) and kind in AVRO_NAMED and ("name" in data or "fields" in data or "symbols" in data)
 
 
 def detect(path: Path, display: str, text: str | None = None) -> str:

@@ -26,6 +26,7 @@ ANNOTATIONS = frozenset({
 })
 REF_KEYS = ("$ref", "$dynamicRef", "$recursiveRef")
 MAX_REF_CHAIN = 256
+MAX_FIELDS = 100_000  # a schema whose recursion unfolds into more paths lists only these
 
 
 @dataclass(frozen=True, eq=False)
@@ -318,6 +319,19 @@ def _merged(node: Node, target: Node) -> Node | None:
     return Node(cache[key][0], node.resolver, node.pointer, node.doc, node.draft, origin=node.value)
 
 
+def _check_pattern(pattern: str, node: Node) -> None:
+    """A pattern that does not compile is bad input (the metaschema's "format": "regex" is only
+    an annotation there), not a constraint to compare."""
+    import re
+
+    try:
+        re.compile(pattern)
+    except re.error as exc:
+        where = node.location()
+        raise InputError(f"pattern {pattern!r} is not a regular expression: {exc.msg}",
+                         where.file, where.line, where.column) from None
+
+
 def normalise(node: Node) -> Norm:
     notes: dict = {}
     node, conjuncts, remote = deref(node, notes)
@@ -359,6 +373,8 @@ def normalise(node: Node) -> Norm:
     n.min_length = get("minLength", 0)
     n.max_length = get("maxLength")
     n.pattern = get("pattern")
+    if isinstance(n.pattern, str):
+        _check_pattern(n.pattern, node)
     n.min_items = get("minItems", 0)
     n.max_items = get("maxItems")
     n.unique_items = get("uniqueItems", False) is True
@@ -473,13 +489,13 @@ def field_paths(loaded) -> set[str]:
     stack = [(loaded.root, "", frozenset())]
     while stack:
         node, prefix, onpath = stack.pop()
-        if node.key in onpath or len(paths) > 1_000_000:
-            continue
-        onpath = onpath | {node.key}
         try:
             n = normalise(node)
         except InputError:
             continue
+        if n.node.key in onpath or len(paths) > MAX_FIELDS:
+            continue
+        onpath = onpath | {n.node.key}
         for name, (child, _) in n.properties.items():
             path = f"{prefix}.{name}" if prefix else name
             paths.add(path)

@@ -598,6 +598,7 @@ def with_value(writer: Side, root: str, path: str, value: float, rng) -> Any:
     wroot = writer.root(root)
     if wroot is None or node_at(writer, wroot[0], path) is None:
         return None
+    path = _numeric_leaf(writer, wroot[0], path)
 
     def press(node):
         branches = node if isinstance(node, list) else [node]
@@ -744,3 +745,22 @@ def isolate(finding, writer: Side, reader: Side) -> Side | None:
     except Exception:  # noqa: BLE001 - a hybrid fastavro will not take: no isolation
         return None
     return Side(reader.display, hybrid, parsed, plain, names)
+
+
+def _numeric_leaf(side: Side, root: Any, path: str) -> str:
+    """``path`` itself, or for a record (a unit on a type applies to its numbers) its first number field."""
+    node = node_at(side, root, path)
+    for b in node if isinstance(node, list) else [node]:
+        b = side.resolve(b)
+        if kind_of(b) in ("int", "long", "float", "double"):
+            return path
+    for b in node if isinstance(node, list) else [node]:
+        b = side.resolve(b)
+        if kind_of(b) in ("record", "error"):
+            for f in b["fields"]:
+                sub = f"{path}.{f['name']}" if path else f["name"]
+                leaf = node_at(side, root, sub)
+                if any(kind_of(side.resolve(x)) in ("int", "long", "float", "double")
+                       for x in (leaf if isinstance(leaf, list) else [leaf])):
+                    return sub
+    return path

@@ -304,8 +304,23 @@ def targeted(finding, writer: Side, reader: Side, rng):
             yield from _aliased(msg, finding.path, wf)
 
 
+def _numeric_leaf(writer: Side, root: str, path: str) -> str:
+    """``path``, or for a message (a unit on a type applies to its numbers) its first number field."""
+    F = _fd()
+    numeric = {F.TYPE_FLOAT, F.TYPE_DOUBLE, *_ranges()}
+    wf = _field_at(writer, root, path) if path else None
+    desc = writer.descriptor(root) if not path else (wf.message_type if wf is not None and _is_message(wf) else None)
+    if desc is None:
+        return path
+    for f in desc.fields:
+        if f.type in numeric and not f.is_repeated:
+            return f"{path}.{f.name}" if path else f.name
+    return path
+
+
 def with_value(writer: Side, root: str, path: str, value: float, rng):
     F = _fd()
+    path = _numeric_leaf(writer, root, path)
     wf = _field_at(writer, root, path)
     if wf is None or _is_message(wf) or wf.type in (F.TYPE_STRING, F.TYPE_BYTES, F.TYPE_BOOL, F.TYPE_ENUM):
         return None

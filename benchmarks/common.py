@@ -1,0 +1,63 @@
+"""Small helpers shared by the benchmark scripts: timing, verdict lines, temp folders."""
+from __future__ import annotations
+
+import os
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+REPO = HERE.parent
+
+
+def evolint_command() -> list[str]:
+    """The installed console script beside this interpreter, else ``python -m linter``."""
+    script = Path(sys.executable).with_name("evolint")
+    return [str(script)] if script.exists() else [sys.executable, "-m", "linter"]
+
+
+def run_wall(cmd: list[str], cwd=None) -> float:
+    start = time.perf_counter()
+    proc = subprocess.run(cmd, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    elapsed = time.perf_counter() - start
+    if proc.returncode not in (0, 1):
+        raise SystemExit(f"benchmark command failed ({proc.returncode}): {' '.join(cmd)}\n"
+                         f"{proc.stderr.decode(errors='replace')}")
+    return elapsed
+
+
+def timed(fn, repeat: int) -> float:
+    """Median wall time of ``fn()`` over ``repeat`` calls (seconds)."""
+    times = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+class Verdicts:
+    """Collects bound checks; the script exits 1 if any is out of bounds."""
+
+    def __init__(self):
+        self.failed = []
+
+    def check(self, label: str, value: float, bound: float, unit: str = "x") -> str:
+        ok = value <= bound
+        if not ok:
+            self.failed.append(label)
+        return f"{value:.2f}{unit} (bound {bound:g}{unit}: {'ok' if ok else 'OUT OF BOUNDS'})"
+
+    def exit(self) -> None:
+        if self.failed:
+            print(f"\nout of bounds: {', '.join(self.failed)}")
+            sys.exit(1)
+        print("\nall within bounds")
+
+
+def env_without_bytecode() -> dict:
+    env = dict(os.environ)
+    env.setdefault("PYTHONDONTWRITEBYTECODE", "1")
+    return env

@@ -1,0 +1,127 @@
+"""Analysis against parsing, and growth with size.
+
+For generated schemas of 1,000, 10,000 and 100,000 fields (Avro, JSON Schema) and a
+5,000-field Protobuf file, compares the total in-process time of a comparison
+(``linter.api.check`` plus the JSON report) with the parse-only floor: reading and
+parsing both files with the same libraries the adapters use, nothing else.
+
+Bounds: total within 2x the floor; 10x the fields in at most 12x the total time.
+
+    python benchmarks/scale.py [--formats avro,jsonschema,protobuf] [--sizes 1000,10000,100000]
+    python benchmarks/scale.py --profile avro:100000     # cProfile of one comparison
+"""
+from __future__ import annotations
+
+import argparse
+import importlib.util
+import io
+import json
+import sys
+import tempfile
+from pathlib import Path
+
+import gen
+from common import Verdicts, timed
+
+SIZES = {"avro": (1000, 10000, 100000), "jsonschema": (1000, 10000, 100000), "protobuf": (500, 5000)}
+
+
+def floor_avro(old: Path, new: Path) -> None:
+    import fastavro
+
+    for path in (old, new):
+        fastavro.parse_schema(json.loads(path.read_bytes().decode("utf-8-sig")))
+
+
+def floor_jsonschema(old: Path, new: Path) -> None:
+    from jsonschema.validators import validator_for
+    from referencing import Registry, Resource
+
+    for path in (old, new):
+        data = json.loads(path.read_bytes().decode("utf-8-sig"))
+        cls = validator_for(data)
+        cls.check_schema(data)
+        Registry().with_resource(data.get("$id", path.as_uri()), Resource.from_contents(data))
+
+
+def floor_protobuf(old: Path, new: Path) -> None:
+    import grpc_tools
+    from google.protobuf import descriptor_pb2, descriptor_pool
+    from grpc_tools import protoc
+
+    well_known = str(Path(grpc_tools.__file__).parent / "_proto")
+    with tempfile.TemporaryDirectory() as tmp:
+        for i, path in enumerate((old, new)):
+            out = Path(tmp, f"{i}.pb")
+            status = protoc.main(["protoc", f"-I{path.parent}", f"-I{well_known}", "--include_source_info",
+                                  f"--descriptor_set_out={out}", "--include_imports", path.name])
+            if status:
+                raise SystemExit(f"protoc failed on {path}")
+            pool = descriptor_pool.DescriptorPool()
+            for file in descriptor_pb2.FileDescriptorSet.FromString(out.read_bytes()).file:
+                pool.Add(file)
+
+
+FLOORS = {"avro": floor_avro, "jsonschema": floor_jsonschema, "protobuf": floor_protobuf}
+
+
+def total(old: Path, new: Path) -> None:
+    from linter import api
+    from linter.report import render
+
+    render("json", api.check(old, new), io.StringIO())
+
+
+def landed(fmt: str) -> bool:
+    return importlib.util.find_spec(f"linter.formats.{fmt}") is not None
+
+
+def repeats(n: int) -> int:
+    return 5 if n <= 1000 else 3 if n <= 10000 else 1
+
+
+def profile(spec: str, folder: Path) -> None:
+    import cProfile
+    import pstats
+
+    fmt, n = spec.split(":")
+    old, new = gen.write_pair(fmt, int(n), folder)
+    total(old, new)  # warm imports
+    prof = cProfile.Profile()
+    prof.runcall(total, old, new)
+    pstats.Stats(prof).sort_stats("cumulative").print_stats(30)
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--formats", default="avro,jsonschema,protobuf")
+    parser.add_argument("--sizes", help="comma-separated field counts (default per format)")
+    parser.add_argument("--profile", metavar="FORMAT:FIELDS")
+    args = parser.parse_args()
+    with tempfile.TemporaryDirectory() as tmp:
+        if args.profile:
+            return profile(args.profile, Path(tmp))
+        verdicts = Verdicts()
+        print(f"{'format':<11}{'fields':>8}{'floor s':>10}{'total s':>10}  total/floor")
+        for fmt in args.formats.split(","):
+            if not landed(fmt):
+                print(f"{fmt:<11}  (adapter not on this branch yet: skipped)")
+                continue
+            sizes = [int(s) for s in args.sizes.split(",")] if args.sizes else SIZES[fmt]
+            previous = None
+            for n in sizes:
+                old, new = gen.write_pair(fmt, n, Path(tmp, fmt))
+                total(old, new)  # warm: imports and the catalogue load once per process
+                floor_s = timed(lambda: FLOORS[fmt](old, new), repeats(n))
+                total_s = timed(lambda: total(old, new), repeats(n))
+                line = (f"{fmt:<11}{n:>8}{floor_s:>10.3f}{total_s:>10.3f}  "
+                        f"{verdicts.check(f'{fmt} {n} vs floor', total_s / floor_s, 2)}")
+                if previous and n == previous[0] * 10:
+                    line += f"; growth x10 fields: {verdicts.check(f'{fmt} {n} growth', total_s / previous[1], 12)}"
+                print(line, flush=True)
+                previous = (n, total_s)
+        verdicts.exit()
+
+
+if __name__ == "__main__":
+    sys.exit(main())
