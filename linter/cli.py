@@ -110,13 +110,15 @@ def announce(old, new, consumers, mode, format_, include, output, witness):
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
               help="Report format.")
-def verify(old, new, samples, seed, format_, include, output):
+@click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
+              help="Also sample this encoding (Protobuf: json, the proto3 JSON mapping). Repeatable.")
+def verify(old, new, samples, seed, format_, include, output, encodings):
     """Test the static verdict of OLD -> NEW against the real codecs with random data."""
     from .verify import render as render_verify
     from .verify import verify as run_verify
 
     report = run_verify(old, new, samples=samples, seed=seed, format=format_, include=include,
-                        progress=sys.stderr.isatty())
+                        encodings=encodings, progress=sys.stderr.isatty())
     render_verify(report, output, sys.stdout)
     raise Failed(report.exit_code)
 

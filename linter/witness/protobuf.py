@@ -22,6 +22,8 @@ from typing import Any
 
 from . import Trial
 
+# Further encodings a run can use besides the binary one (verify --count-encoding).
+ENCODINGS = ("json",)
 INT32 = (-2**31, 2**31 - 1)
 UINT32 = (0, 2**32 - 1)
 INT64 = (-2**63, 2**63 - 1)
