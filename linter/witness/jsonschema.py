@@ -462,6 +462,7 @@ def targeted(finding, writer: Side, reader: Side, rng):
             yield _complete(writer.data, _put(base, segs, copy.deepcopy(value)))
             if segs:
                 yield _complete(writer.data, _put(base, segs, [copy.deepcopy(value)]))  # arrays are transparent
+                yield _complete(writer.data, _put(base, segs, [copy.deepcopy(value)] * 2))  # uniqueItems
     # Instances aimed at the reader schema often sit just outside it on the writer's side.
     for _ in range(GENERATED):
         value = generate(reader, reader.data, rng)
