@@ -90,7 +90,9 @@ def check(paths, mode, format_, include, encodings, output, consumers, witness, 
               help="Configuration file (default: the nearest evolint.toml or pyproject.toml [tool.evolint]).")
 @click.option("--output", type=click.Choice(("markdown", "json")), default="markdown", show_default=True,
               help="Markdown to paste, or the same content as JSON.")
-def announce(paths, consumers, mode, format_, include, base, staged, config_file, output):
+@click.option("--witness", is_flag=True,
+              help="Add to each breaking change an example datum, confirmed by running the codec.")
+def announce(paths, consumers, mode, format_, include, base, staged, config_file, output, witness):
     """Write the announcement of a change: who must be told, and what changes for them."""
     from .announce import render as render_announcement
     from .config import discover
@@ -100,7 +102,7 @@ def announce(paths, consumers, mode, format_, include, base, staged, config_file
     if not (consumers or discover(config_file, ".").consumers):
         raise UsageError("announce needs a consumer registry: --consumers FILE, or consumers in the configuration")
     report = run_check(paths, mode=mode, format=format_, include=include, base=base, staged=staged,
-                       config_file=config_file, consumers=consumers)
+                       config_file=config_file, consumers=consumers, witness=witness)
     render_announcement(report, sys.stdout, output)
     raise Failed(report.exit_code)
 
@@ -117,13 +119,15 @@ def announce(paths, consumers, mode, format_, include, base, staged, config_file
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
               help="Report format.")
-def verify(old, new, samples, seed, format_, include, output):
+@click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
+              help="Also sample this encoding (Protobuf: json, the proto3 JSON mapping). Repeatable.")
+def verify(old, new, samples, seed, format_, include, output, encodings):
     """Test the static verdict of OLD -> NEW against the real codecs with random data."""
     from .verify import render as render_verify
     from .verify import verify as run_verify
 
     report = run_verify(old, new, samples=samples, seed=seed, format=format_, include=include,
-                        progress=sys.stderr.isatty())
+                        encodings=encodings, progress=sys.stderr.isatty())
     render_verify(report, output, sys.stdout)
     raise Failed(report.exit_code)
 
