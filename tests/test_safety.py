@@ -105,6 +105,30 @@ def test_the_probe_sees_a_heavy_import():
     assert "jsonschema" in json.loads(proc.stdout.strip().splitlines()[-1])["loaded"]
 
 
+def test_lazy_catalogue_finds_every_kind_as_the_full_one_does():
+    from linter.catalogue import LazyCatalogue, load, rules_dir
+
+    full = load().full()
+    lazy = LazyCatalogue(sorted(rules_dir().glob("*.toml")))
+    for rule in full:
+        assert lazy.for_kind(rule.kind) == rule
+    assert lazy._full is None  # every kind was found in its own file, none by the fallback
+    assert lazy.for_kind("no-such-kind") is None and lazy._full is not None
+
+
+@needs(ADAPTER["avro"])
+def test_avro_run_reads_only_the_rule_files_it_needs(tmp_path):
+    old, new = write_pair(tmp_path, "avro")
+    probe = ("import json, sys\nfrom linter import catalogue, cli\ntry:\n    cli.main(sys.argv[1:])\n"
+             "except SystemExit:\n    pass\ncat = catalogue.load()\n"
+             "print(json.dumps({'parts': sorted(cat._parts), 'full': cat._full is not None}))")
+    proc = subprocess.run([sys.executable, "-c", probe, "check", old, new, "--output", "json"],
+                          capture_output=True, text=True)
+    data = json.loads(proc.stdout.strip().splitlines()[-1])
+    assert data["full"] is False
+    assert set(data["parts"]) <= {"avro", "general", "semantic"}
+
+
 # --- size cap ----------------------------------------------------------------------------
 
 @pytest.mark.parametrize("fmt", SAMPLES)
