@@ -495,3 +495,41 @@ def test_format_detection_takes_any_json_value(doc):
     from linter.formats import looks_like_avro
 
     assert looks_like_avro(doc) is False
+
+
+# --- assumptions the speed fixes rest on -------------------------------------------------
+
+@needs(ADAPTER["avro"])
+def test_fastavro_leaves_its_input_unchanged():
+    # The Avro adapter hands fastavro its own parsed document without a defensive copy.
+    import copy
+
+    import fastavro
+
+    docs = [json.loads(p.read_text()) for p in sorted(ROOT.glob("tests/cases/avro/*/*.avsc"))]
+    docs += [json.loads(p.read_text()) for p in sorted(ROOT.glob("schemas_example/*/*.avsc"))]
+    assert len(docs) > 20
+    for doc in docs:
+        before = copy.deepcopy(doc)
+        try:
+            fastavro.parse_schema(doc, _write_hint=False)
+        except Exception:  # noqa: BLE001 - invalid cases are part of the sample
+            pass
+        assert doc == before
+
+
+@needs(ADAPTER["avro"])
+def test_field_pairing_by_name_then_aliases_in_old_order():
+    from linter.formats.avro import _pair_fields
+    from linter.formats.avro_schema import Field, Node
+
+    def rec(*fields):
+        return Node(kind="record", fields=[Field(name=n, type=Node(kind="int"), position=i, aliases=tuple(a))
+                                           for i, (n, a) in enumerate(fields)])
+
+    old = rec(("a", []), ("b", []), ("c", ["z"]), ("d", []))
+    new = rec(("x", ["d", "b"]), ("a", []), ("z", []), ("e", []))
+    pairs, old_left, new_left = _pair_fields(old, new)
+    assert [(o.name, n.name) for o, n in pairs] == [("a", "a"), ("b", "x"), ("c", "z")]
+    assert [f.name for f in old_left] == ["d"] and [f.name for f in new_left] == ["e"]
+    assert old.field("c").name == "c" and old.field("nope") is None
