@@ -109,7 +109,9 @@ def _section(consumer: dict, findings) -> list[str]:
         lines.append(f"  - Rule {f.rule}; {esc(f.reference)}")
     rest = [findings[i] for i in consumer["findings"] if i not in told]
     if rest:
-        lines += ["", "Also changing on fields you read, compatible for you:", ""]
+        needs = consumer.get("needs", "none")
+        keeps = f"these keep the {needs} compatibility you rely on" if needs != "none" else "no action needed"
+        lines += ["", f"Also changing on fields you read ({keeps}):", ""]
         lines += [f"- {code(_target(f))}: {esc(f.message)}" for f in rest]
     if consumer.get("fields"):
         lines += ["", "Fields affected: " + ", ".join(code(p) for p in consumer["fields"])]

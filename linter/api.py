@@ -7,7 +7,7 @@ from __future__ import annotations
 import os
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Iterable
+from typing import Any, Callable, Iterable
 
 from . import __version__, catalogue, engine
 from .errors import InputError, UsageError
@@ -34,7 +34,9 @@ class Report:
 
     @property
     def passed(self) -> bool:
-        return self.compatibility.keeps(self.mode) and not any(f.severity == "error" for f in self.findings)
+        # A comparison may carry its own mode (configured per path); otherwise the run's.
+        kept = all(c.compatibility.keeps(c.mode or self.mode) for c in self.comparisons)
+        return kept and not any(f.severity == "error" for f in self.findings)
 
     @property
     def exit_code(self) -> int:
@@ -102,65 +104,86 @@ def _format_of(path: Path, display: str, forced: str | None) -> str:
     return forced or detect(path, display)
 
 
-def _preload(pairs_: list[Pair], format: str | None, options: Options,
+def _preload(pairs_: list[Pair], format: str | None, options: Options, old_options: Options | None,
              roots: tuple[Path, Path] | None) -> dict[str, Schema]:
     """Schemas of adapters that load one side's files together (``load_many``), by display name."""
     loaded: dict[str, Schema] = {}
-    both = [p for p in pairs_ if p.old is not None and p.new is not None]
     by_format: dict[str, list[Pair]] = {}
-    for pair in both:
-        by_format.setdefault(_format_of(pair.old, pair.old_display, format), []).append(pair)
+    for pair in pairs_:
+        if pair.old is not None and pair.new is not None:
+            by_format.setdefault(_format_of(pair.old, pair.old_display, format), []).append(pair)
     for fmt, group in by_format.items():
         module = adapter(fmt)
         if not hasattr(module, "load_many") or len(group) < 2:
             continue
-        for side, root in (("old", roots[0] if roots else None), ("new", roots[1] if roots else None)):
+        for side, root, opts in (("old", roots[0] if roots else None, old_options or options),
+                                 ("new", roots[1] if roots else None, options)):
             files = [(getattr(p, side), getattr(p, side + "_display")) for p in group]
-            loaded.update(module.load_many(files, options, root=root))
+            loaded.update(module.load_many(files, opts, root=root))
     return loaded
 
 
-def compare(pairs_: Iterable[Pair], policy: engine.Policy, *, format: str | None = None,
-            options: Options | None = None, roots: tuple[Path, Path] | None = None) -> list[Comparison]:
-    options = options or Options()
+def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: Options,
+                old_options: Options | None = None, preloaded: dict[str, Schema] | None = None) -> Comparison:
+    """Compare one pair of files under ``policy`` (``old_options`` for the OLD side, if it differs)."""
     cat = catalogue.load()
-    comparisons = []
+    preloaded = preloaded or {}
+    if pair.old is None or pair.new is None:
+        present = pair.new if pair.old is None else pair.old
+        display = pair.new_display if pair.old is None else pair.old_display
+        fmt = _format_of(present, display, format)
+        kind = "schema-file-added" if pair.old is None else "schema-file-removed"
+        findings = engine.judge([_file_change(kind, fmt, pair)], cat, policy)
+        return Comparison(pair.old_display, pair.new_display, fmt, tuple(findings), policy.mode)
+    fmt_old = _format_of(pair.old, pair.old_display, format)
+    fmt_new = _format_of(pair.new, pair.new_display, format)
+    if fmt_old != fmt_new:
+        raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
+                         pair.new_display)
+    module = adapter(fmt_old)
+    old_schema = preloaded.get(pair.old_display) or module.load(pair.old, pair.old_display, old_options or options)
+    new_schema = preloaded.get(pair.new_display) or module.load(pair.new, pair.new_display, options)
+    changes = module.diff(old_schema, new_schema)
+    findings = engine.judge(changes, cat, policy)
+    return Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings), policy.mode,
+                      old_fields={r: frozenset(p) for r, p in old_schema.fields.items()})
+
+
+def compare(pairs_: Iterable[Pair], policy: engine.Policy | Callable[[Pair], engine.Policy], *,
+            format: str | None = None, options: Options | None = None,
+            old_options: Options | None = None, jobs: int | None = None,
+            roots: tuple[Path, Path] | None = None) -> list[Comparison]:
+    """Compare every pair, in order; ``policy`` may be a function of the pair (per-path settings).
+
+    Many pairs are compared on several processes (linter/pool.py); the result is the same.
+    Formats that compile one side's files together (Protobuf: one protoc call per side) are
+    loaded first, in this process, and their pairs compared here.
+    """
+    from .pool import run_all
+
+    options = options or Options()
     pairs_ = list(pairs_)
-    preloaded = _preload(pairs_, format, options, roots)
-    for pair in pairs_:
-        if pair.old is None or pair.new is None:
-            present = pair.new if pair.old is None else pair.old
-            display = pair.new_display if pair.old is None else pair.old_display
-            fmt = _format_of(present, display, format)
-            kind = "schema-file-added" if pair.old is None else "schema-file-removed"
-            findings = engine.judge([_file_change(kind, fmt, pair)], cat, policy)
-            comparisons.append(Comparison(pair.old_display, pair.new_display, fmt, tuple(findings)))
-            continue
-        fmt_old = _format_of(pair.old, pair.old_display, format)
-        fmt_new = _format_of(pair.new, pair.new_display, format)
-        if fmt_old != fmt_new:
-            raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
-                             pair.new_display)
-        module = adapter(fmt_old)
-        old_schema = preloaded.get(pair.old_display) or module.load(pair.old, pair.old_display, options)
-        new_schema = preloaded.get(pair.new_display) or module.load(pair.new, pair.new_display, options)
-        changes = module.diff(old_schema, new_schema)
-        findings = engine.judge(changes, cat, policy)
-        comparisons.append(Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings),
-                                      old_fields={r: frozenset(p) for r, p in old_schema.fields.items()}))
-    return comparisons
+    tasks = [(pair, policy(pair) if callable(policy) else policy) for pair in pairs_]
+    preloaded = _preload(pairs_, format, options, old_options, roots)
+    if preloaded:
+        return [compare_one(pair, pol, format, options, old_options, preloaded) for pair, pol in tasks]
+    return run_all(compare_one, tasks, format, options, old_options, jobs=jobs)
 
 
 def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: str | None = None,
           include: Iterable[str] = (), encodings: Iterable[str] = (),
-          policy: engine.Policy | None = None, options: Options | None = None,
-          consumers: str | Path | None = None) -> Report:
+          policy: engine.Policy | Callable[[Pair], engine.Policy] | None = None,
+          options: Options | None = None, consumers: str | Path | None = None,
+          witness: bool = False, jobs: int | None = None) -> Report:
     """Compare OLD with NEW (two files or two directories) and classify every change.
 
     ``encodings`` names further encodings whose effect counts toward the verdict (Protobuf:
     ``"json"``, the proto3 JSON mapping); the binary encoding always counts.
+    ``policy`` may be a function of each pair (settings configured per path).
     ``consumers`` names a consumer registry (YAML): the report then says which consumers
-    read what changed and which of them must be told.
+    read what changed and which of them must be told. ``witness=True`` attaches to each
+    finding that breaks a direction a datum showing it, confirmed by running the real
+    codec (``linter.witness``).
     """
     if mode not in MODES:
         raise UsageError(f"unknown mode {mode!r} (known: {', '.join(MODES)})")
@@ -172,9 +195,15 @@ def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: s
 
         registry = impact.load(consumers)  # a bad registry fails before any schema is read
     roots = (Path(old), Path(new)) if Path(old).is_dir() and Path(new).is_dir() else None
-    comparisons = compare(pairs(old, new), policy, format=format, options=options, roots=roots)
-    settings = {"encodings": list(policy.encodings)} if policy.encodings else {}
-    report = Report(mode=policy.mode, comparisons=comparisons, settings=settings)
+    comparisons = compare(pairs(old, new), policy, format=format, options=options, jobs=jobs, roots=roots)
+    if witness:
+        from .witness import attach
+
+        comparisons = attach(comparisons, options)
+    counted = policy.encodings if isinstance(policy, engine.Policy) else tuple(encodings)
+    settings = {"encodings": list(counted)} if counted else {}
+    report = Report(mode=policy.mode if isinstance(policy, engine.Policy) else mode,
+                    comparisons=comparisons, settings=settings)
     if registry is not None:
         impact.apply(report, registry, warn_unmatched=Path(old).is_dir())
     return report

@@ -13,7 +13,7 @@ from . import __version__
 from .errors import InputError
 from .model import MODES
 
-OUTPUTS = ("text", "json")
+OUTPUTS = ("text", "json", "sarif", "markdown", "annotations")
 FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
 ENCODINGS = ("json",)
 
@@ -35,10 +35,9 @@ def cli(ctx, debug):
 
 
 @cli.command()
-@click.argument("old", type=click.Path())
-@click.argument("new", type=click.Path())
-@click.option("--mode", type=click.Choice(MODES), default="backward", show_default=True,
-              help="The compatibility the change must keep.")
+@click.argument("paths", nargs=-1, type=click.Path(), metavar="OLD NEW | [PATHS]...")
+@click.option("--mode", type=click.Choice(MODES), default=None,
+              help="The compatibility the change must keep.  [default: backward, or the configuration's]")
 @click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
@@ -50,13 +49,25 @@ def cli(ctx, debug):
               help="Report format.")
 @click.option("--consumers", type=click.Path(), default=None,
               help="Consumer registry (YAML): say who reads what changed and who must be told.")
-def check(old, new, mode, format_, include, encodings, output, consumers):
-    """Compare OLD with NEW (two files, or two directories paired by relative path)."""
-    from .api import check as run_check
-    from .report import render
+@click.option("--witness", is_flag=True,
+              help="Show, for each finding that breaks a direction, a datum that demonstrates it "
+                   "(confirmed by running the codec).")
+@click.option("--base", metavar="REF", default=None,
+              help="Compare the working tree with this git revision; PATHS limit the files.")
+@click.option("--staged", is_flag=True, help="With git: compare the index (what will be committed), not the working tree.")
+@click.option("--config", "config_file", type=click.Path(dir_okay=False),
+              help="Configuration file (default: the nearest evolint.toml or pyproject.toml [tool.evolint]).")
+def check(paths, mode, format_, include, encodings, output, consumers, witness, base, staged, config_file):
+    """Compare OLD with NEW (two files, or two directories paired by relative path).
 
-    report = run_check(old, new, mode=mode, format=format_, include=include, encodings=encodings,
-                       consumers=consumers)
+    With --base REF or --staged: compare the working tree or the index with a git revision.
+    """
+    from .report import render
+    from .runs import run_check
+
+    report = run_check(paths, mode=mode, format=format_, include=include, base=base, staged=staged,
+                       config_file=config_file, encodings=encodings or None, consumers=consumers,
+                       witness=witness)
     render(output, report, sys.stdout)
     raise Failed(report.exit_code)
 
@@ -82,6 +93,53 @@ def announce(old, new, consumers, mode, format_, include, output):
     report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
     render_announcement(report, sys.stdout, output)
     raise Failed(report.exit_code)
+
+
+@cli.command()
+@click.argument("old", type=click.Path())
+@click.argument("new", type=click.Path())
+@click.option("--samples", type=click.IntRange(1, 100_000), default=200, show_default=True,
+              help="Random data per direction and root type.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Seed of the random data.")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
+              help="Report format.")
+def verify(old, new, samples, seed, format_, include, output):
+    """Test the static verdict of OLD -> NEW against the real codecs with random data."""
+    from .verify import render as render_verify
+    from .verify import verify as run_verify
+
+    report = run_verify(old, new, samples=samples, seed=seed, format=format_, include=include,
+                        progress=sys.stderr.isatty())
+    render_verify(report, output, sys.stdout)
+    raise Failed(report.exit_code)
+
+
+@cli.command()
+@click.argument("target", type=click.Path())
+@click.option("--git", "use_git", is_flag=True, help="Take the versions from the commits that changed TARGET.")
+@click.option("--every-earlier", is_flag=True,
+              help="Compare each version with every earlier one, not only its predecessor.")
+@click.option("--mode", type=click.Choice(MODES), default=None,
+              help="The compatibility each step must keep.  [default: backward, or the configuration's]")
+@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+              help="Schema language, when the extension does not tell.")
+@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+              help="Add a Protobuf import path (repeatable).")
+@click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True)
+@click.option("--config", "config_file", type=click.Path(dir_okay=False), help="Configuration file.")
+def history(target, use_git, every_earlier, mode, format_, include, output, config_file):
+    """Check a schema's history: folders v1/ v2/ ..., files name.1.avsc name.2.avsc ..., or --git."""
+    from . import history as hist
+    from .config import discover
+
+    result = hist.run(target, use_git=use_git, every_earlier=every_earlier, mode=mode, format=format_,
+                      include=include, config=discover(config_file))
+    (hist.render_json if output == "json" else hist.render_text)(result, sys.stdout)
+    raise Failed(result.exit_code)
 
 
 @cli.command()

@@ -125,17 +125,15 @@ class _Scope:
 
 
 def _scope(read: Read, comparison: Comparison, roots, numbered) -> _Scope | None:
-    if read.by_file:
-        if not (glob_matches(read.schema, comparison.old) or glob_matches(read.schema, comparison.new)):
-            return None
-        paths = set().union(*roots.values()) if roots else None
-        return _Scope(list(numbered), paths)
+    # A type's name first: a JSON Schema's $id may be a URL, which also reads as a glob.
     in_old = read.schema in roots
     picked = [(i, f) for i, f in numbered
               if f.schema == read.schema or (in_old and _about_the_file(f, comparison, roots))]
-    if not in_old and not picked:
-        return None
-    return _Scope(picked, set(roots[read.schema]) if in_old else None)
+    if in_old or picked:
+        return _Scope(picked, set(roots[read.schema]) if in_old else None)
+    if read.by_file and (glob_matches(read.schema, comparison.old) or glob_matches(read.schema, comparison.new)):
+        return _Scope(list(numbered), set().union(*roots.values()) if roots else None)
+    return None
 
 
 def _reason(index: int, finding: Finding, needs: str) -> Reason | None:
@@ -152,7 +150,7 @@ def assess(consumer: Consumer, comparisons: Iterable[tuple[Comparison, Mapping, 
     hits: dict[int, Finding] = {}
     stale, unmatched = [], []
     for read in consumer.reads:
-        matched = False
+        matched, old_paths = False, None
         for comparison, roots, numbered in comparisons:
             scope = _scope(read, comparison, roots, numbered)
             if scope is None:
@@ -161,12 +159,14 @@ def assess(consumer: Consumer, comparisons: Iterable[tuple[Comparison, Mapping, 
             for i, f in scope.findings:
                 if read.fields is None or any(p.overlaps(f.path) for p in read.fields):
                     hits[i] = f
-            if read.fields is not None and scope.old_paths is not None:
-                for pattern in read.fields:
-                    if not any(pattern.covers(p) for p in scope.old_paths):
-                        stale.append(Stale(consumer.name, read.schema, pattern.text))
+            if scope.old_paths is not None:
+                old_paths = (old_paths or set()) | scope.old_paths
         if not matched:
             unmatched.append(read.schema)
+        elif read.fields is not None and old_paths is not None:
+            # Stale: nothing the read matched in OLD (every file, for a glob) has the field.
+            stale += [Stale(consumer.name, read.schema, pattern.text) for pattern in read.fields
+                      if not any(pattern.covers(p) for p in old_paths)]
     order = sorted(hits)
     reasons = tuple(r for r in (_reason(i, hits[i], needs) for i in order) if r is not None)
     fields = tuple(dict.fromkeys(f"{hits[i].schema}:{hits[i].path}" if hits[i].path else hits[i].schema

@@ -163,6 +163,8 @@ class Comparison:
     new: str
     format: str
     findings: tuple[Finding, ...] = ()
+    # The mode this pair must keep, where configuration sets one per path (else the run's).
+    mode: str | None = None
     # The OLD side's root types and their field paths (Schema.fields), for consumer impact.
     old_fields: Mapping[str, frozenset[str]] = field(default_factory=dict, compare=False)
 

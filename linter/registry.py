@@ -17,6 +17,7 @@ from .formats import read_text
 from .paths import Pattern, PatternError, is_glob, parse
 
 SCHEMA = Path(__file__).parent / "data" / "consumers.schema.json"
+MAX_NODES = 100_000  # far above any real registry; stops alias bombs before they are built
 TYPE_WORDS = {"array": "a list", "object": "a mapping", "string": "text", "integer": "a number",
               "boolean": "true or false", "null": "empty"}
 
@@ -114,6 +115,39 @@ def _check_nodes(root, display: str) -> None:
                 stack += [key, value]
         elif isinstance(node, yaml.SequenceNode):
             stack += node.value
+    size = _expanded_size(root)
+    if size < 0:
+        raise InputError("the registry refers to itself through an alias", display, *_mark(root))
+    if size > MAX_NODES:
+        raise InputError(f"the registry expands to more than {MAX_NODES} values through its aliases; "
+                         "refusing to read it", display, *_mark(root))
+
+
+def _expanded_size(root) -> int:
+    """How many values the data holds once aliases are expanded (a few aliases can nest
+    into billions), counted per distinct node so that the count itself stays cheap."""
+    import yaml
+
+    def children(node):
+        if isinstance(node, yaml.MappingNode):
+            return [n for pair in node.value for n in pair]
+        return node.value if isinstance(node, yaml.SequenceNode) else []
+
+    sizes: dict[int, int] = {}
+    stack = [(root, False)]
+    while stack:  # post-order without recursion: a node's size after all of its children's
+        node, done = stack.pop()
+        if done:
+            sizes[id(node)] = min(MAX_NODES + 1, 1 + sum(sizes[id(c)] for c in children(node)))
+            continue
+        if id(node) in sizes:
+            if sizes[id(node)] < 0:  # reached again while still open: the data refers to itself
+                return -1
+            continue
+        sizes[id(node)] = -1
+        stack.append((node, True))
+        stack += [(c, False) for c in children(node)]
+    return sizes[id(root)]
 
 
 def _short_tag(tag: str) -> str:
@@ -163,13 +197,17 @@ def _where(path) -> str:
 
 
 def _validate(data, root, display: str) -> None:
-    errors = list(_validator().iter_errors(data))
+    try:
+        errors = list(_validator().iter_errors(data))
+    except RecursionError:
+        raise InputError("the registry is nested too deeply to check", display) from None
     if not errors:
         return
     # The first error in file order is the one to fix first.
     def position(error):
+        # An unknown key is usually a misspelt required one: report it before the missing key.
         node, key = node_at(root, error.absolute_path)
-        return _mark(key or node)
+        return _mark(key or node), error.validator != "additionalProperties"
 
     error = min(errors, key=position)
     path = list(error.absolute_path)
@@ -178,8 +216,11 @@ def _validate(data, root, display: str) -> None:
     about = f"'{member}'" if member else (f"'{path[-1]}'" if path and isinstance(path[-1], str)
                                           else "the top level" if not path else "the entry")
     if error.validator == "additionalProperties":
-        known = ", ".join(error.schema.get("properties", {}))
-        extra = [k for k in error.instance if k not in error.schema.get("properties", {})]
+        import re
+
+        props, free = error.schema.get("properties", {}), list(error.schema.get("patternProperties", {}))
+        known = ", ".join(props) + (", or keys starting with 'x-'" if free else "")
+        extra = [k for k in error.instance if k not in props and not any(re.search(p, k) for p in free)]
         node, key = node_at(root, path + [extra[0]])
         text = f"unknown key {extra[0]!r} (known: {known})"
     elif error.validator == "required":

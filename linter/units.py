@@ -104,6 +104,9 @@ _STOP = set("./(){}")
 # What the lenient (pint) reading accepts: letters, digits, spaces and arithmetic; pint
 # evaluates expressions, so anything else is refused before it gets there.
 _LENIENT = re.compile(r"^[A-Za-z_µμ°Ω0-9 .*/^()\-²³]{1,64}$")
+# Blanks around an operator change nothing a reader could mean ("m3 / h"); elsewhere
+# ("kg m") they are not UCUM and are left to the lenient reading.
+_OPERATOR_SPACE = re.compile(r"\s*([./()])\s*")
 _STRAY_DOT = re.compile(r"(?<!\d)\.|\.(?!\d)")  # pint reads '.' only inside numbers
 
 
@@ -119,6 +122,11 @@ class Ucum:
     number: Fraction
     atoms: tuple[tuple[str, str, int], ...]
     annotations: tuple[str, ...]
+
+    @property
+    def scale_with_offset(self) -> bool:
+        """A temperature scale standing alone (Cel, [degF]): converted with its offset."""
+        return self.number == 1 and len(self.atoms) == 1 and self.atoms[0][1] in OFFSET
 
 
 class _Reader:
@@ -230,7 +238,10 @@ def parse(text: str) -> Ucum:
         raise UnitSyntaxError("empty unit")
     reader = _Reader(text)
     reader.main_term()
-    return Ucum(text, reader.number, tuple(reader.atoms), tuple(sorted(reader.annotations)))
+    code = Ucum(text, reader.number, tuple(reader.atoms), tuple(sorted(reader.annotations)))
+    if code.scale_with_offset and code.atoms[0][::2] != ("", 1):
+        raise UnitSyntaxError(f"{text!r}: a prefix or exponent on a temperature scale with an offset is ambiguous")
+    return code
 
 
 # --- pint: imported only from here on -------------------------------------------------
@@ -273,15 +284,12 @@ def read(text: str) -> Reading:
     """Read a unit text with pint: as UCUM, else leniently; raises UnitSyntaxError."""
     text = text.strip()
     try:
-        code = parse(text)
+        code = parse(_OPERATOR_SPACE.sub(r"\1", text))
     except UnitSyntaxError as exc:
         return _lenient(text, exc)
     ureg = registry()
-    if code.number == 1 and len(code.atoms) == 1 and code.atoms[0][1] in OFFSET:
-        prefix, atom, exponent = code.atoms[0]
-        if prefix or exponent != 1:
-            raise UnitSyntaxError(f"{text!r}: a prefix or exponent on a temperature scale with an offset is ambiguous")
-        q = _atom_quantity(atom, False)
+    if code.scale_with_offset:
+        q = _atom_quantity(code.atoms[0][1], False)
         return Reading(text, 1.0, q.units, code.annotations, "ucum")
     q = ureg.Quantity(float(code.number))
     for prefix, atom, exponent in code.atoms:

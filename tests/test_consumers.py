@@ -3,6 +3,7 @@
 Impact is tested on synthetic findings, so it does not depend on any format adapter;
 the end-to-end checks on schemas_example/ are in tests/test_announce.py.
 """
+import json
 from pathlib import Path
 
 import pytest
@@ -103,6 +104,12 @@ BAD = {
     "empty reads": ("consumers:\n  - {name: a, contact: a@example.org, reads: []}\n", 2, "empty list"),
     "not a mapping": ("- a\n", 1, "must be a mapping"),
     "empty file": ("", 1, "registry is empty"),
+    "unknown top-level key": ("x-lists: &f [a]\nconsumer: []\n", 2, "unknown key 'consumer' (known: consumers, or keys"),
+    "alias bomb": ("a: &a [x, x, x, x, x, x, x, x, x, x]\n"
+                   + "".join(f"{n}: &{n} [{', '.join(['*' + p] * 10)}]\n" for p, n in zip("abcdef", "bcdefg"))
+                   + "consumers: *g\n", 1, "expands to more than 100000 values"),
+    "self-reference": ("consumers: &a [*a]\n", 1, "refers to itself"),
+    "deep nesting": ("consumers: " + "[" * 1200 + "]" * 1200 + "\n", None, "nested too deeply"),
 }
 
 
@@ -114,6 +121,13 @@ def test_bad_registries_are_one_line_errors_with_a_line(tmp_path, case):
     assert caught.value.line == line, str(caught.value)
     assert words in str(caught.value)
     assert "\n" not in str(caught.value)
+
+
+def test_anchors_can_share_field_lists(tmp_path):
+    registry = consumers.load(write(tmp_path, "x-meter: &meter [meter_id, volume]\nconsumers:\n"
+                                    "  - {name: a, contact: a@example.org, reads: [{schema: s, fields: *meter}]}\n"
+                                    "  - {name: b, contact: b@example.org, reads: [{schema: s, fields: *meter}]}\n"))
+    assert [[p.text for p in c.reads[0].fields] for c in registry.consumers] == [["meter_id", "volume"]] * 2
 
 
 def test_an_error_names_the_entry(tmp_path):
@@ -210,6 +224,25 @@ def test_stale_fields_are_reported(tmp_path):
     assert not found[0].stale and not found[2].stale
 
 
+def test_a_glob_field_is_stale_only_when_no_matched_file_has_it(tmp_path):
+    registry = consumers.load(write(tmp_path, "consumers:\n  - {name: a, contact: a@example.org, "
+                                    "reads: [{schema: '**/*.avsc', fields: [meter_id, period, nowhere]}]}\n"))
+    billing = {"utility.billing.BillingPeriod": frozenset({"period", "consumption"})}
+    found = consumers.impacts([comparison(), comparison(old="v1/b.avsc", new="v2/b.avsc", fields=billing)],
+                              registry, "backward")
+    assert [s.field for s in found[0].stale] == ["nowhere"]
+
+
+def test_a_type_named_by_a_url_is_read_by_name(tmp_path):
+    url = "https://example.org/schemas/service-notice.json"
+    registry = consumers.load(write(tmp_path, f"consumers:\n  - {{name: a, contact: a@example.org, "
+                                    f"reads: [{{schema: '{url}', fields: [starts]}}]}}\n"))
+    notice = comparison(finding("starts", Compat.BACKWARD, schema=url), finding("ends", Compat.BREAKING, schema=url),
+                        old="v1/notice.json", new="v2/notice.json", fields={url: frozenset({"starts", "ends"})})
+    found = consumers.impacts([notice], registry, "backward")
+    assert found[0].findings == (0,) and found[0].verdict == "informed" and not found[0].stale
+
+
 def test_reads_that_match_nothing_are_listed(registry):
     found = consumers.impacts([comparison(old="a/leak_alert.json", new="b/leak_alert.json", fields={})],
                               registry, "backward")
@@ -288,3 +321,28 @@ def test_stricter_needs_are_told_at_least_as_often(found, fields):
         segs = path.split(".") if path else []
         on_branch = any(segs[:len(f.split("."))] == f.split(".")[:len(segs)] for f in fields)
         assert (i in by["full-some"].findings) == on_branch
+
+
+def test_the_shipped_registry_schema_is_a_valid_schema_and_the_example_passes_it():
+    import yaml
+    from jsonschema import Draft202012Validator
+
+    from linter.registry import SCHEMA
+
+    schema = json.loads(SCHEMA.read_text())
+    Draft202012Validator.check_schema(schema)
+    example = Path(__file__).resolve().parent.parent / "schemas_example" / "consumers.yaml"
+    errors = list(Draft202012Validator(schema).iter_errors(yaml.safe_load(example.read_text())))
+    assert not errors, errors[0].message
+
+
+def test_text_report_says_when_nobody_must_be_told(registry):
+    import io
+
+    from linter.report import text
+
+    report = consumers.apply(Report(mode="backward", comparisons=[comparison(finding("volume"))]), registry)
+    out = io.StringIO()
+    text.render(report, out, color=False)
+    assert out.getvalue().rstrip().endswith(
+        "No consumer must be told\nInformed: billing, data-archive\nUnaffected: leak-detection, network-planning")

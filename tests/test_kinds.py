@@ -3,11 +3,11 @@ import importlib
 
 import pytest
 
-from linter import catalogue, semantics
+from linter import catalogue, config, semantics
 from linter.formats import FORMATS
 
 CAT = catalogue.load()
-GENERAL = {"schema-file-added", "schema-file-removed"}
+GENERAL = {"schema-file-added", "schema-file-removed"} | config.KINDS
 
 
 def producers():

@@ -8,9 +8,12 @@ changed semantic and breaking).
 import json
 import subprocess
 import sys
+from pathlib import Path
 
 import pytest
+from hypothesis import given, strategies as st
 
+import linter
 from linter import catalogue, engine, semantics
 from linter.model import Compat, Location
 
@@ -164,3 +167,34 @@ def test_pint_is_imported_when_unit_texts_differ():
         "from linter import semantics\n"
         "semantics.annotation_changes('t', 'f', {'unit': 'L'}, {'unit': 'l'})\n")
     assert "pint" in loaded
+
+
+# --- properties --------------------------------------------------------------------------
+
+UNITS = st.sampled_from(["ms", "s", "min", "h", "L", "l", "m3", "dm3", "mL", "[gal_us]", "kPa", "bar",
+                         "[psi]", "Pa", "Cel", "[degF]", "K", "kW.h", "MJ", "W", "%", "[ppm]", "1",
+                         "L/min", "m3/h", "{reading}", "{reading}/h", "glugs", "meter", "m"])
+
+
+@given(UNITS, UNITS)
+def test_unit_findings_are_symmetric(a, b):
+    # Common practice (algebra of units): the change b -> a undoes a -> b, so it has the
+    # same class, and its factor is the inverse.
+    there, back = changes({"unit": a}, {"unit": b}), changes({"unit": b}, {"unit": a})
+    assert [c.kind for c in there] == [c.kind for c in back]
+    if there and there[0].kind in ("unit-rescaled", "unit-offset-changed"):
+        assert there[0].facts["factor"] * back[0].facts["factor"] == pytest.approx(1.0, rel=1e-9)
+    for c in there:
+        assert c.facts["old_unit"] == a and c.facts["new_unit"] == b
+
+
+# --- end to end: the JSON report ---------------------------------------------------------
+
+def test_json_report_carries_the_factor(validate_report):
+    folder = Path(__file__).parent / "cases" / "avro" / "semantic-unit-rescaled"
+    data = validate_report(linter.check(folder / "old.avsc", folder / "new.avsc").to_json())
+    [f] = data["findings"]
+    assert f["rule"] == "S003" and f["semantic"] is True and f["compatibility"] == "breaking"
+    assert f["details"]["old_unit"] == "L" and f["details"]["new_unit"] == "m3"
+    assert f["details"]["factor"] == 0.001
+    assert data["passed"] is False

@@ -120,7 +120,7 @@ def test_a_temperature_in_a_rate_is_an_interval():
 
 @pytest.mark.parametrize("old,new", [
     ("m", "meter"), ("L", "l"), ("kW.h", "kWh"), ("L", "dm3"), ("Cel", "degC"),
-    ("s-1", "Hz"), ("m3", "m^3"), ("kg/(m.s2)", "Pa"), ("10*3", "1000"),
+    ("s-1", "Hz"), ("m3", "m^3"), ("kg/(m.s2)", "Pa"), ("10*3", "1000"), ("m3/h", "m3 / h"),
 ])
 def test_same_unit_spelled_differently(old, new):
     # UCUM for the codes; the second spellings are read leniently (common practice).
@@ -140,17 +140,18 @@ def test_dimension_changes(old, new):
 
 @pytest.mark.parametrize("text", [
     "", "m s", "kg..m", "(m", "m)", "{reading", "[psi", "glugs", "10*", "K/", "m2.",
+    "mCel", "Cel2",
 ])
 def test_not_ucum(text):
-    # UCUM syntax (from memory, §1-§7): no blanks, balanced brackets, known atoms.
+    # UCUM syntax (from memory, §1-§7): no blanks, balanced brackets, known atoms; and
+    # (common practice) no prefix or power on a temperature scale that has an offset.
     with pytest.raises(units.UnitSyntaxError):
         units.parse(text)
 
 
 @pytest.mark.parametrize("text", ["mCel", "Cel2", "glugs", "kg..m", "2 +"])
 def test_unreadable(text):
-    # A prefix or power on a scale with an offset has no meaning (common practice);
-    # the rest is neither UCUM nor a spelling pint knows.
+    # Neither UCUM nor a spelling pint knows (the lenient reading refuses them too).
     with pytest.raises(units.UnitSyntaxError):
         units.read(text)
 

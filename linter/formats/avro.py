@@ -42,7 +42,7 @@ KINDS = frozenset({
     "avro-fixed-size-changed",
     "avro-union-branch-added", "avro-union-new-branch-read-as-other",
     "avro-union-branch-removed", "avro-union-old-branch-read-as-other", "avro-union-branches-reordered",
-    "avro-logical-type-changed", "avro-decimal-changed",
+    "avro-logical-type-changed", "avro-decimal-changed", "avro-alias-removed",
 })
 
 
@@ -181,6 +181,10 @@ class _Differ:
 
     # -- named types ------------------------------------------------------------------
     def names(self, o: Node, n: Node, ctx: Ctx) -> None:
+        lost = [a for a in o.aliases if a not in n.aliases and a != n.name]
+        if lost:
+            self.emit("avro-alias-removed", ctx, list(o.aliases), list(n.aliases), aliases=lost,
+                      what=f"{n.kind} {n.name}")
         if o.name == n.name:
             return
         if o.short == n.short:
@@ -228,6 +232,10 @@ class _Differ:
         elif of.has_default:
             self.emit("avro-field-default-removed", fctx, _json(of.default), None)
         self.doc(of.doc, nf.doc, fctx, f"field {of.name}")
+        lost = [a for a in of.aliases if a not in nf.aliases and a != nf.name]
+        if lost:
+            self.emit("avro-alias-removed", fctx, list(of.aliases), list(nf.aliases), aliases=lost,
+                      what=f"field {nf.name}")
         if of.order != nf.order:
             self.emit("avro-field-order-changed", fctx, of.order, nf.order)
         # A record's unit applies to its fields without one (docs/annotations.md).

@@ -26,6 +26,7 @@ ANNOTATIONS = frozenset({
 })
 REF_KEYS = ("$ref", "$dynamicRef", "$recursiveRef")
 MAX_REF_CHAIN = 256
+MAX_FIELDS = 100_000  # a schema whose recursion unfolds into more paths lists only these
 
 
 @dataclass(frozen=True, eq=False)
@@ -488,13 +489,13 @@ def field_paths(loaded) -> set[str]:
     stack = [(loaded.root, "", frozenset())]
     while stack:
         node, prefix, onpath = stack.pop()
-        if node.key in onpath or len(paths) > 1_000_000:
-            continue
-        onpath = onpath | {node.key}
         try:
             n = normalise(node)
         except InputError:
             continue
+        if n.node.key in onpath or len(paths) > MAX_FIELDS:
+            continue
+        onpath = onpath | {n.node.key}
         for name, (child, _) in n.properties.items():
             path = f"{prefix}.{name}" if prefix else name
             paths.add(path)

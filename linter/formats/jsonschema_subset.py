@@ -124,7 +124,8 @@ def _structural(changes) -> list:
 
 
 def compare(ctx: Ctx, a_node: Node, b_node: Node, path: str) -> None:
-    pair = (a_node.key, b_node.key)
+    a, b = normalise(a_node), normalise(b_node)
+    pair = (a.node.key, b.node.key)  # after references: a recursive schema meets itself again
     if pair in ctx.stack:
         return  # recursion: assume the pair included while proving it (instances are finite)
     key = (pair, path) if ctx.visits < VISIT_LIMIT else pair
@@ -132,7 +133,6 @@ def compare(ctx: Ctx, a_node: Node, b_node: Node, path: str) -> None:
         return
     ctx.seen.add(key)
     ctx.visits += 1
-    a, b = normalise(a_node), normalise(b_node)
     ctx.stack.add(pair)
     try:
         for compare_keyword in KEYWORDS.values():

@@ -7,7 +7,8 @@ from __future__ import annotations
 
 import importlib
 
-REPORTERS = {"text": "text", "json": "json"}
+REPORTERS = {"text": "text", "json": "json", "sarif": "sarif", "markdown": "markdown",
+             "annotations": "annotations"}
 
 
 def render(name: str, report, stream, **options) -> None:

@@ -47,6 +47,13 @@ def _jsonable(value) -> bool:
         return False
 
 
+def _comparison(c, mode) -> dict:
+    out = {"old": c.old, "new": c.new, "format": c.format, "compatibility": c.compatibility.value}
+    if c.mode and c.mode != mode:
+        out["mode"] = c.mode
+    return out
+
+
 def to_json(report) -> dict:
     findings = report.findings
     out = {
@@ -55,10 +62,7 @@ def to_json(report) -> dict:
         "mode": report.mode,
         "compatibility": report.compatibility.value,
         "passed": report.passed,
-        "comparisons": [
-            {"old": c.old, "new": c.new, "format": c.format, "compatibility": c.compatibility.value}
-            for c in report.comparisons
-        ],
+        "comparisons": [_comparison(c, report.mode) for c in report.comparisons],
         "findings": [finding_json(f) for f in findings],
         "consumers": list(report.consumers),
     }

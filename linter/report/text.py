@@ -32,6 +32,11 @@ def direction(finding) -> str:
     return "breaks " + " and ".join(broken) if broken else "compatible"
 
 
+def _one_line(text: str) -> str:
+    # Catalogue paragraphs are wrapped for the TOML file, not for the terminal.
+    return " ".join(text.split())
+
+
 def _where(finding) -> str:
     parts = []
     for label, loc in (("old", finding.old_loc), ("new", finding.new_loc)):
@@ -56,12 +61,27 @@ def render_findings(console, report) -> None:
             path = f.path or "(type)"
             console.print(f"  [{style}]{f.severity:<7}[/] [bold]{f.rule}[/] {escape(path)}  "
                           f"[{style}]{direction(f)}[/]")
-            console.print(f"          {escape(f.message)}")
+            console.print(f"          {escape(_one_line(f.message))}")
             if f.severity != "info" and f.advice:
-                console.print(f"          [green]→ {escape(f.advice)}[/]")
+                console.print(f"          [green]→ {escape(_one_line(f.advice))}[/]")
             where = _where(f)
             if where:
                 console.print(f"          [dim]{escape(where)}[/]")
+            if "witness" in f.extra:
+                _witness(console, f.extra["witness"])
+
+
+def _witness(console, w) -> None:
+    import json
+
+    from rich.markup import escape
+
+    mark = "[green]confirmed[/]" if w["confirmed"] else "[yellow]not confirmed[/]"
+    via = f" ({w['encoding']})" if w.get("encoding") else ""
+    console.print(f"          witness {w['direction']}{escape(via)}, {mark}: "
+                  f"{escape(json.dumps(w['datum'], ensure_ascii=False, default=str))}")
+    console.print(f"            [dim]written with {escape(w['writer'])}, read with {escape(w['reader'])}:[/] "
+                  f"{escape(w['outcome'])}")
 
 
 def summary_line(report) -> str:

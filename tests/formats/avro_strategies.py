@@ -142,6 +142,13 @@ def tweak(draw, type_):
         out = [b for i, b in enumerate(out) if b not in out[:i]]
         return out[0] if len(out) == 1 else out
     kind = type_["type"]
+    if kind in ("enum", "fixed", "record") and draw(st.integers(0, 4)) == 0:
+        # Renamed, with an alias for the old name (full or relative), or without one.
+        alias = draw(st.sampled_from([None, type_["name"], f"{NAMESPACE}.{type_['name']}", "Elsewhere"]))
+        out = dict(type_, name=type_["name"] + "_v2")
+        if alias:
+            out["aliases"] = [alias]
+        return out
     if kind == "enum":
         symbols = list(type_["symbols"])
         edit = draw(st.sampled_from(["add", "remove", "default", "reorder"]))

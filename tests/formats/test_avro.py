@@ -162,3 +162,14 @@ def test_the_example_scenario_shows_each_kind_of_outcome(validate_report):
     assert ("utility.metering.MeterReading", "volume", "S003") in found        # L -> m3
     assert ("utility.leaks.LeakAlert", "estimated_loss", "S012") in found      # meaning changed
     assert ("utility.leaks.LeakAlert", "raised_at", "A070") in found           # millis -> micros
+
+
+def test_every_avro_rule_has_a_case_folder():
+    from linter import catalogue
+
+    cases = Path(__file__).resolve().parents[1] / "cases" / "avro"
+    covered = set()
+    for expected in cases.glob("*/expected.json"):
+        covered |= set(json.loads(expected.read_text())["rules"])
+    rules = {r.id for r in catalogue.load() if r.format == "avro" and r.status != "removed"}
+    assert sorted(rules - covered) == []

@@ -181,7 +181,7 @@ BREAKING = [d for d in directions() if not _claimed(*d)]
 
 
 @pytest.mark.parametrize("label,direction", COMPATIBLE, ids=[f"{a}-{b}" for a, b in COMPATIBLE])
-@settings(max_examples=20, deadline=None, suppress_health_check=list(HealthCheck))
+@settings(max_examples=8, deadline=None, suppress_health_check=list(HealthCheck))
 @given(data=st.data())
 def test_compatible_directions_accept_every_instance(label, direction, data):
     src, dst = sides(label, direction)
@@ -193,11 +193,16 @@ def test_compatible_directions_accept_every_instance(label, direction, data):
     assert validator(dst).is_valid(instance), f"{label}: evolint calls {direction} compatible, but {instance!r} fails"
 
 
+SLOW = settings.default.max_examples >= 100  # EVOLINT_HYPOTHESIS=slow
+WITNESS_TRIES = 300 if SLOW else 25
+
+
 def test_breaking_directions_have_witnesses_mostly():
     found, tried, missed = 0, 0, []
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        for label, direction in BREAKING:
+        # CI measures every other breaking direction; the slow profile measures all.
+        for label, direction in BREAKING if SLOW else BREAKING[::2]:
             src, dst = sides(label, direction)
             strat = strategy(src)
             if strat is None:
@@ -205,17 +210,16 @@ def test_breaking_directions_have_witnesses_mostly():
             v_src, v_dst = validator(src), validator(dst)
             tried += 1
             try:
-                # Any witness will do: skip shrinking, which costs more than the search.
                 find(strat, lambda x: v_src.is_valid(x) and not v_dst.is_valid(x),
-                     settings=settings(max_examples=2 * settings.default.max_examples, deadline=None, database=None,
-                                       phases=(Phase.explicit, Phase.generate),
+                     settings=settings(max_examples=WITNESS_TRIES, deadline=None, database=None,
+                                       phases=(Phase.generate,),  # a witness, not a minimal one
                                        suppress_health_check=list(HealthCheck)))
                 found += 1
             except (NoSuchExample, Unsatisfiable):
                 missed.append(f"{label}-{direction}")
     rate = found / tried
     print(f"\nwitness rate: {found}/{tried} = {rate:.0%}; none found for: {', '.join(missed)}")
-    assert tried >= 40
+    assert tried >= 40 if SLOW else tried >= 20
     # Undecided findings and semantic-free imprecision leave some without a witness.
     assert rate >= 0.75, missed
 

@@ -19,7 +19,7 @@ from hypothesis.errors import NoSuchExample
 
 import linter
 
-from .protobuf_runtime import classes, messages, survives_binary, survives_json
+from protobuf_runtime import classes, messages, survives_binary, survives_json
 
 CASES = Path(__file__).resolve().parent.parent / "cases" / "protobuf"
 # Breaks that live outside the bytes of one message, so no round trip can show them:
