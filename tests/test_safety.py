@@ -533,3 +533,26 @@ def test_field_pairing_by_name_then_aliases_in_old_order():
     assert [(o.name, n.name) for o, n in pairs] == [("a", "a"), ("b", "x"), ("c", "z")]
     assert [f.name for f in old_left] == ["d"] and [f.name for f in new_left] == ["e"]
     assert old.field("c").name == "c" and old.field("nope") is None
+
+
+def test_sourcemap_tokens_match_the_plain_string_pattern():
+    # The unrolled string pattern in linter/sourcemap.py must split JSON text exactly as
+    # the plain one does; random JSON with quotes, escapes and brackets inside strings.
+    import re
+
+    from hypothesis import given
+    from hypothesis import strategies as st
+
+    from linter.sourcemap import _TOKENS
+
+    plain = re.compile(r'"(?:[^"\\]|\\.)*"|[{\[]')
+    text = st.text(alphabet='ab"\\[]{}\n\u00e9', max_size=10)
+    docs = st.recursive(text | st.integers(), lambda kids: st.lists(kids, max_size=4)
+                        | st.dictionaries(text, kids, max_size=4), max_leaves=20)
+
+    @given(docs, st.booleans())
+    def same(doc, ascii_only):
+        dumped = json.dumps(doc, ensure_ascii=ascii_only)
+        assert [m.span() for m in _TOKENS.finditer(dumped)] == [m.span() for m in plain.finditer(dumped)]
+
+    same()
