@@ -48,13 +48,14 @@ def load_many(files: Iterable[tuple[Path, str]], options: Options, root: Path | 
 def _schema(model, source: Source) -> Schema:
     from .protobuf_model import Model
 
+    virtual = source.virtual  # resolves two paths on disk: once per file, not once per type
     own = Model(
-        files={k: v for k, v in model.files.items() if k == source.virtual},
-        messages={k: _own(m, source.virtual) for k, m in model.messages.items()},
-        enums={k: _own(e, source.virtual) for k, e in model.enums.items()},
-        services={k: s for k, s in model.services.items() if s.file == source.virtual},
+        files={k: v for k, v in model.files.items() if k == virtual},
+        messages={k: _own(m, virtual) for k, m in model.messages.items()},
+        enums={k: _own(e, virtual) for k, e in model.enums.items()},
+        services={k: s for k, s in model.services.items() if s.file == virtual},
     )
-    if source.virtual not in model.files:
+    if virtual not in model.files:
         raise InputError("protoc did not report this file", source.display)
     roots = tuple(sorted(m.full_name for m in own.messages.values()
                          if m.own and m.parent is None and not m.map_entry))
