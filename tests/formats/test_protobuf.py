@@ -9,6 +9,7 @@ from pathlib import Path
 import pytest
 
 import linter
+import linter.catalogue  # used as linter.catalogue below; not imported by linter itself
 from linter.errors import InputError
 from linter.formats import Options, protobuf
 from linter.formats.protobuf_compile import well_known_dir
