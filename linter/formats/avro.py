@@ -10,7 +10,7 @@ Avro specification 1.12.0, "Schema Resolution".
 from __future__ import annotations
 
 import copy
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import InputError
@@ -122,16 +122,34 @@ def field_paths(node: Node, prefix: str = "", active: frozenset = frozenset()):
             yield from field_paths(f.type, path, active | {id(node)})
 
 
-@dataclass(frozen=True)
 class Ctx:
-    schema: str
-    path: str
-    old_loc: Location | None
-    new_loc: Location | None
-    top: bool = False
+    """Where the differ is: the root type, the path, and OLD's and NEW's objects there.
 
-    def at(self, name: str, old_loc, new_loc) -> "Ctx":
-        return Ctx(self.schema, f"{self.path}.{name}" if self.path else name, old_loc, new_loc)
+    Locations are resolved only when a change asks for one: looking up every paired
+    field's line built both source maps even for identical files (benchmarks/scale.py).
+    """
+
+    __slots__ = ("schema", "path", "top", "_old", "_new")
+
+    def __init__(self, schema: str, path: str, old_at, new_at, top: bool = False):
+        # old_at/new_at: a Location, None, or a (Loaded, raw object) pair resolved on use.
+        self.schema, self.path, self.top = schema, path, top
+        self._old, self._new = old_at, new_at
+
+    @property
+    def old_loc(self) -> Location | None:
+        if isinstance(self._old, tuple):
+            self._old = self._old[0].loc(self._old[1])
+        return self._old
+
+    @property
+    def new_loc(self) -> Location | None:
+        if isinstance(self._new, tuple):
+            self._new = self._new[0].loc(self._new[1])
+        return self._new
+
+    def at(self, name: str, old_at, new_at) -> "Ctx":
+        return Ctx(self.schema, f"{self.path}.{name}" if self.path else name, old_at, new_at)
 
 
 def diff(old: Schema, new: Schema) -> list[Change]:
@@ -139,7 +157,7 @@ def diff(old: Schema, new: Schema) -> list[Change]:
     o, n = old.model.model.root, new.model.model.root
     schema = o.name if o.named else (n.name if n.named else new.file)
     try:
-        differ.node(o, n, Ctx(schema, "", old.model.loc(o.raw), new.model.loc(n.raw), top=True))
+        differ.node(o, n, Ctx(schema, "", (old.model, o.raw), (new.model, n.raw), top=True))
     except RecursionError:
         raise InputError("schemas nested too deeply to compare", new.file) from None
     return differ.changes
@@ -170,9 +188,9 @@ class _Differ:
         if o.kind == "union" or n.kind == "union":
             return self.union(o, n, ctx)
         if ctx.top and o.kind == n.kind == "record":
-            ctx = Ctx(o.name, "", ctx.old_loc, ctx.new_loc)  # a root record starts its own paths
+            ctx = Ctx(o.name, "", ctx._old, ctx._new)  # a root record starts its own paths
         elif ctx.top:
-            ctx = replace(ctx, top=False)
+            ctx = Ctx(ctx.schema, ctx.path, ctx._old, ctx._new)
         key = (id(o), id(n))
         if key in self.active:  # recursive types: this pair is being compared further up
             return
@@ -210,22 +228,23 @@ class _Differ:
     def record(self, o: Node, n: Node, ctx: Ctx) -> None:
         self.names(o, n, ctx)
         self.doc(o.doc, n.doc, ctx, f"record {n.name}")
-        self.changes.extend(annotation_changes(ctx.schema, ctx.path, o.annotations, n.annotations,
-                                               ctx.old_loc, ctx.new_loc))
+        if o.annotations or n.annotations:  # none on either side reports nothing
+            self.changes.extend(annotation_changes(ctx.schema, ctx.path, o.annotations, n.annotations,
+                                                   ctx.old_loc, ctx.new_loc))
         pairs, old_left, new_left = _pair_fields(o, n)
         for of, nf in pairs:
             self.field(of, nf, ctx, o, n)
         for of in old_left:
-            fctx = ctx.at(of.name, self.old.loc(of.raw), None)
+            fctx = ctx.at(of.name, (self.old, of.raw), None)
             kind = "avro-field-removed-with-default" if of.has_default else "avro-field-removed-without-default"
             self.emit(kind, fctx, of.type.describe(), None, field=of.name, record=o.name)
         for nf in new_left:
-            fctx = ctx.at(nf.name, None, self.new.loc(nf.raw))
+            fctx = ctx.at(nf.name, None, (self.new, nf.raw))
             kind = "avro-field-added-with-default" if nf.has_default else "avro-field-added-without-default"
             self.emit(kind, fctx, None, nf.type.describe(), field=nf.name, record=n.name)
 
     def field(self, of: Field, nf: Field, ctx: Ctx, o: Node, n: Node) -> None:
-        fctx = ctx.at(of.name, self.old.loc(of.raw), self.new.loc(nf.raw))
+        fctx = ctx.at(of.name, (self.old, of.raw), (self.new, nf.raw))
         if of.name != nf.name:
             backward = of.name in nf.aliases or nf.has_default
             forward = nf.name in of.aliases or of.has_default
@@ -246,10 +265,13 @@ class _Differ:
                       what=f"field {nf.name}")
         if of.order != nf.order:
             self.emit("avro-field-order-changed", fctx, of.order, nf.order)
-        # A record's unit applies to its fields without one (docs/annotations.md).
-        self.changes.extend(annotation_changes(fctx.schema, fctx.path, of.annotations, nf.annotations,
-                                               fctx.old_loc, fctx.new_loc,
-                                               old_type=o.annotations, new_type=n.annotations))
+        # A record's unit applies to its fields without one (docs/annotations.md); a field
+        # pair with no annotation of its own on either side reports nothing (the record's
+        # own comparison covers an inherited unit).
+        if of.annotations or nf.annotations:
+            self.changes.extend(annotation_changes(fctx.schema, fctx.path, of.annotations, nf.annotations,
+                                                   fctx.old_loc, fctx.new_loc,
+                                                   old_type=o.annotations, new_type=n.annotations))
         self.node(of.type, nf.type, fctx)
 
     def enum(self, o: Node, n: Node, ctx: Ctx) -> None:
