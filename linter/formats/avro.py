@@ -253,7 +253,7 @@ class _Differ:
     def record(self, o: Node, n: Node, ctx: Ctx) -> None:
         self.names(o, n, ctx)
         self.doc(o.doc, n.doc, ctx, f"record {n.name}")
-        if o.annotations or n.annotations:  # none on either side reports nothing
+        if o.annotations != n.annotations:  # equal (stripped) annotations report nothing
             self.changes.extend(annotation_changes(ctx.schema, ctx.path, o.annotations, n.annotations,
                                                    ctx.old_loc, ctx.new_loc))
         pairs, old_left, new_left = _pair_fields(o, n)
@@ -290,10 +290,11 @@ class _Differ:
                       what=f"field {nf.name}")
         if of.order != nf.order:
             self.emit("avro-field-order-changed", fctx, of.order, nf.order)
-        # A record's unit applies to its fields without one (docs/annotations.md); a field
-        # pair with no annotation of its own on either side reports nothing (the record's
-        # own comparison covers an inherited unit).
-        if of.annotations or nf.annotations:
+        # A record's unit applies to its fields without one (docs/annotations.md). Nothing
+        # is reported where neither side has one of its own (the record's comparison covers
+        # an inherited unit), nor where the field's and the record's are equal both sides.
+        if (of.annotations or nf.annotations) and (of.annotations != nf.annotations
+                                                   or o.annotations != n.annotations):
             self.changes.extend(annotation_changes(fctx.schema, fctx.path, of.annotations, nf.annotations,
                                                    fctx.old_loc, fctx.new_loc,
                                                    old_type=o.annotations, new_type=n.annotations))
