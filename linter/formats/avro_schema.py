@@ -121,6 +121,8 @@ class Model:
 
 def annotations_of(obj: dict) -> dict:
     """The unit and meaning attributes of a field or a named type (docs/avro.md)."""
+    if "unit" not in obj and "meaning" not in obj:  # most fields: no new dict per lookup
+        return {}
     return {k: obj[k].strip() for k in ("unit", "meaning") if isinstance(obj.get(k), str)}
 
 
