@@ -36,28 +36,20 @@ class SourceMap:
     def _build(self) -> None:
         text = self._text
         offsets = [s for s in map(operator.methodcaller("start", 1), _BRACKETS.finditer(text)) if s >= 0]
-        positions: dict[int, int] = {}
-        stack = [self._tree]
-        index = 0
+        order: list[int] = []  # ids of the containers in preorder
+        stack = [self._tree] if isinstance(self._tree, (dict, list)) else []
+        push, visit, containers = stack.extend, order.append, (dict, list)
         # Iterative preorder: deep documents must not hit the recursion limit.
         while stack:
             node = stack.pop()
-            if isinstance(node, dict):
-                children = list(node.values())
-            elif isinstance(node, list):
-                children = node
-            else:
-                continue
-            if index >= len(offsets):
-                positions = {}
-                break
-            positions[id(node)] = offsets[index]
-            index += 1
-            stack.extend(reversed([c for c in children if isinstance(c, (dict, list))]))
-        if index != len(offsets):
-            # Duplicate keys discard containers the text still holds: positions would
-            # drift, so give none rather than wrong ones.
-            positions = {}
+            visit(id(node))
+            kids = [c for c in (node.values() if isinstance(node, dict) else node) if isinstance(c, containers)]
+            if kids:
+                kids.reverse()
+                push(kids)
+        # Duplicate keys discard containers the text still holds: positions would drift,
+        # so give none rather than wrong ones.
+        positions = dict(zip(order, offsets)) if len(order) == len(offsets) else {}
         self._positions = positions
         # Offsets of the newlines, from the lengths of the lines between them.
         parts = text.split("\n")
