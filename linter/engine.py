@@ -40,6 +40,9 @@ class Policy:
     encodings: tuple[str, ...] = ()
     severities: Mapping[str, str] = field(default_factory=dict)  # rule id or name -> severity
     silences: tuple[Silence, ...] = ()
+    # How a finding the analysis could not decide counts toward the verdict:
+    # "breaking" (the default: never claim what cannot be shown) or "compatible".
+    undecided: str = "breaking"
 
     def severity(self, rule: Rule, compat: Compat) -> str:
         override = self.severities.get(rule.id) or self.severities.get(rule.name)
@@ -64,6 +67,8 @@ def context(change: Change) -> dict:
 def judge_one(change: Change, rule: Rule, policy: Policy) -> Finding:
     effects = {}
     compat = rule.compatibility
+    if rule.undecided and policy.undecided == "compatible":
+        compat = Compat.FULL
     if rule.encodings:
         effects = {"binary" if rule.format == "protobuf" else rule.format: rule.compatibility,
                    **rule.encodings}

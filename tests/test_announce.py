@@ -273,3 +273,17 @@ consumers:
     # reason became required (breaks backward only); the unit of duration changed (semantic)
     assert {c["name"]: c["verdict"] for c in data["consumers"]} == {
         "portal": "must-be-told", "sms": "unaffected", "planner": "informed", "rota": "must-be-told"}
+
+
+def test_announce_takes_the_registry_and_modes_from_the_configuration(tree, capsys):
+    # A by-path mode "full" for meter.avsc: consumers without needs of their own rely on it
+    # there (docs/configuration.md, docs/consumers.md).
+    (tree / "evolint.toml").write_text('consumers = "consumers.yaml"\n\n'
+                                       '[[by-path]]\nfiles = "**/meter.avsc"\nmode = "full"\n')
+    with pytest.raises(SystemExit):
+        main(["announce", str(tree / "v1"), str(tree / "v2"), "--config", str(tree / "evolint.toml"),
+              "--output", "json"])
+    data = json.loads(capsys.readouterr().out)
+    # f reads site.*: the removal of site.district breaks forward, which "full" needs
+    assert data["announcement"]["told"] == ["a", "d", "f", "g"]
+    assert data["announcement"]["informed"] == []

@@ -63,11 +63,14 @@ def load(path: Path, display: str, options: Options | None = None) -> Schema:
     text = read_text(Path(path), display)
     data = parse_json(text, display)
     sourcemap = SourceMap(text, data)
-    model = parse(data, display, sourcemap.locate)
-    _fastavro_gate(data, model, display)
-    roots = root_names(model.root, display)
-    fields = {root: frozenset(field_paths(model.names[root])) if root in model.names else frozenset()
-              for root in roots}
+    try:
+        model = parse(data, display, sourcemap.locate)
+        _fastavro_gate(data, model, display)
+        roots = root_names(model.root, display)
+        fields = {root: frozenset(field_paths(model.names[root])) if root in model.names else frozenset()
+                  for root in roots}
+    except RecursionError:
+        raise InputError("schema nested too deeply to read", display) from None
     return Schema("avro", display, roots, fields, Loaded(model, display, sourcemap))
 
 
@@ -90,6 +93,8 @@ def _fastavro_gate(data, model: Model, display: str) -> None:
             memo[id(obj)].pop("logicalType", None)
     try:
         parse_schema(checked, _write_hint=False)
+    except RecursionError:
+        raise
     except Exception as exc:  # noqa: BLE001 - fastavro raises many types; all mean bad input
         reason = " ".join(str(exc).split()) or type(exc).__name__
         raise InputError(f"not a valid Avro schema: {reason}", display) from None
@@ -133,7 +138,10 @@ def diff(old: Schema, new: Schema) -> list[Change]:
     differ = _Differ(old.model, new.model)
     o, n = old.model.model.root, new.model.model.root
     schema = o.name if o.named else (n.name if n.named else new.file)
-    differ.node(o, n, Ctx(schema, "", old.model.loc(o.raw), new.model.loc(n.raw), top=True))
+    try:
+        differ.node(o, n, Ctx(schema, "", old.model.loc(o.raw), new.model.loc(n.raw), top=True))
+    except RecursionError:
+        raise InputError("schemas nested too deeply to compare", new.file) from None
     return differ.changes
 
 

@@ -47,6 +47,7 @@ class Doc:
     sourcemap: SourceMap | None
     index: dict = field(default_factory=dict)  # shared by a run's documents: id(node) -> (Doc, pointer)
     merged: dict = field(default_factory=dict)  # $ref objects merged with their targets (normal form)
+    derefs: dict = field(default_factory=dict)  # node key -> where its references lead
 
 
 @dataclass

@@ -25,7 +25,6 @@ ANNOTATIONS = frozenset({
     "$vocabulary", "default", "format", "contentEncoding", "contentMediaType", "contentSchema",
 })
 REF_KEYS = ("$ref", "$dynamicRef", "$recursiveRef")
-MAX_REF_CHAIN = 256
 MAX_FIELDS = 100_000  # a schema whose recursion unfolds into more paths lists only these
 
 
@@ -165,16 +164,17 @@ class Unresolved(Exception):
 def resolve(node: Node, ref_key: str, ref: str):
     """Follow one reference from ``node``; returns a Node, or raises Unresolved(uri) for remote."""
     from referencing.exceptions import Unresolvable
-    import referencing.jsonschema as rj
-
-    from .jsonschema import RemoteReference
 
     try:
         if ref_key == "$recursiveRef":
+            import referencing.jsonschema as rj
+
             resolved = rj.lookup_recursive_ref(node.resolver)
         else:
             resolved = node.resolver.lookup(ref)
     except Unresolvable as exc:
+        from .jsonschema import RemoteReference
+
         cause = exc.__cause__
         while cause is not None and not isinstance(cause, (RemoteReference, InputError)):
             cause = cause.__cause__
@@ -208,51 +208,66 @@ def resolve(node: Node, ref_key: str, ref: str):
 NOTES = ("default", "format", "contentEncoding", "contentMediaType", "contentSchema", "x-unit", "x-meaning")
 
 
+_BUSY = object()  # a cache entry being computed: meeting it again is a cycle
+
+
 def deref(node: Node, notes: dict | None = None) -> tuple[Node, list, tuple]:
-    """Follow a chain of references. Returns (node, [conjunct Nodes], remote URIs).
+    """Follow a chain of references (cached per node). Returns (node, [conjunct Nodes], remote URIs).
 
     In draft-04/06/07 a ``$ref`` replaces its siblings; from 2019-09 on it applies
-    beside them, so assertion siblings make the referenced schema a conjunct.
+    beside them, so assertion siblings make the referenced schema a conjunct. ``notes``
+    receives the annotations met on the way (the referring node's win).
     """
-    notes = {} if notes is None else notes
-    conjuncts = []
-    remote: list = []
-    seen = set()
-    for _ in range(MAX_REF_CHAIN):
-        value = node.value
-        if not isinstance(value, dict):
-            return node, conjuncts, tuple(remote)
-        ref_key = next((k for k in REF_KEYS if isinstance(value.get(k), str)), None)
-        if ref_key is None:
-            return node, conjuncts, tuple(remote)
-        for k in NOTES:  # the referring node's annotations win over the target's
-            if k in value:
-                notes.setdefault(k, value[k])
-        if node.key in seen:
-            where = node.location()
-            raise InputError(f"reference cycle with no base case through {value[ref_key]!r}",
-                             where and where.file, where and where.line, where and where.column)
-        seen.add(node.key)
+    cache = node.doc.derefs
+    entry = cache.get(node.key)
+    if entry is _BUSY:
+        where = node.location()
+        raise InputError("reference cycle with no base case (references that only lead to each other)",
+                         where and where.file, where and where.line, where and where.column)
+    if entry is None:
+        cache[node.key] = _BUSY
         try:
-            target = resolve(node, ref_key, value[ref_key])
-        except Unresolved as exc:
-            remote.append(str(exc))
-            target = None
-        legacy = node.draft in LEGACY
-        siblings = {k for k in value if k not in REF_KEYS and k not in ANNOTATIONS and not k.startswith("x-")}
-        if legacy or not siblings:
-            if target is None:
-                return Node(True, node.resolver, node.pointer, node.doc, node.draft), conjuncts, tuple(remote)
-            # Annotations beside a lone $ref belong to the referring node; keep the
-            # referring node's annotations by remembering it as the annotation source.
-            node = target
-            continue
-        if target is not None:
-            conjuncts.append(target)
-        return node, conjuncts, tuple(remote)
-    where = node.location()
-    raise InputError("reference chain too long (more than 256 references in a row)",
-                     where and where.file, where and where.line, where and where.column)
+            found: dict = {}
+            try:
+                entry = (*_hop(node, found), found, node.value)  # keep value alive: ids stay unique
+            except RecursionError:
+                where = node.location()
+                raise InputError("reference chain too long to follow", where and where.file,
+                                 where and where.line, where and where.column) from None
+        finally:
+            if cache.get(node.key) is _BUSY:
+                del cache[node.key]
+        cache[node.key] = entry
+    target, conjuncts, remote, found, _ = entry
+    if notes is not None:
+        for k, v in found.items():
+            notes.setdefault(k, v)
+    return target, list(conjuncts), remote
+
+
+def _hop(node: Node, notes: dict) -> tuple[Node, list, tuple]:
+    """One reference of ``node``, then the rest of the chain through the cache."""
+    value = node.value
+    if not isinstance(value, dict):
+        return node, [], ()
+    ref_key = next((k for k in REF_KEYS if isinstance(value.get(k), str)), None)
+    if ref_key is None:
+        return node, [], ()
+    for k in NOTES:  # the referring node's annotations win over the target's
+        if k in value:
+            notes.setdefault(k, value[k])
+    remote: tuple = ()
+    try:
+        target = resolve(node, ref_key, value[ref_key])
+    except Unresolved as exc:
+        remote, target = (str(exc),), None
+    siblings = {k for k in value if k not in REF_KEYS and k not in ANNOTATIONS and not k.startswith("x-")}
+    if node.draft in LEGACY or not siblings:
+        if target is None:
+            return Node(True, node.resolver, node.pointer, node.doc, node.draft), [], remote
+        end, conjuncts, more = deref(target, notes)
+        return end, conjuncts, remote + more
+    return node, ([target] if target is not None else []), remote
 
 
 def _bound(value, exclusive_value, legacy_flag, lower: bool) -> Bound | None:

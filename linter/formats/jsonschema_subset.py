@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Any
 
-from ..model import Change
+from ..model import Change, Location
 from .jsonschema_normal import ALL, Norm, Node, canonical, normalise
 
 KINDS = frozenset({
@@ -89,8 +89,29 @@ class Ctx:
         facts.setdefault("old_value", show(old))
         facts.setdefault("new_value", show(new))
         self.changes.append(Change(kind, self.schema, path, show(old), show(new),
-                                   a.node.location() if a is not None else None,
-                                   b.node.location() if b is not None else None, facts))
+                                   where(a, keyword), where(b, keyword), facts))
+
+
+def where(n: Norm | None, keyword: str):
+    """The line of the keyword's value where it is an object or array, else of the schema."""
+    if n is None:
+        return None
+    value = n.node.value
+    target = None
+    for part in keyword.lstrip("/").split("/") if keyword.strip("/") else ():
+        part = part.replace("~1", "/").replace("~0", "~")
+        if isinstance(value, dict) and part in value:
+            value = value[part]
+        elif isinstance(value, list) and part.isdigit() and int(part) < len(value):
+            value = value[int(part)]
+        else:
+            break
+        if isinstance(value, (dict, list)) and value:
+            target = value
+    if target is None or n.node.doc.sourcemap is None:
+        return n.node.location()
+    found = n.node.doc.sourcemap.locate(target)
+    return Location(n.node.doc.display, *found) if found else n.node.location()
 
 
 def show(value):
@@ -184,9 +205,60 @@ def shared(a: Norm, b: Norm, t: str) -> bool:
 
 # ---------------------------------------------------------------- keywords for every type
 
+def json_type(value) -> str:
+    if value is None:
+        return "null"
+    if isinstance(value, bool):
+        return "boolean"
+    if isinstance(value, int) or (isinstance(value, float) and value.is_integer()):
+        return "integer"
+    return {float: "number", str: "string", list: "array", dict: "object"}.get(type(value), "?")
+
+
+# Keywords on values themselves (no subschemas): enum values are checked against them.
+SCALAR = ("minimum", "maximum", "exclusiveMinimum", "exclusiveMaximum", "multipleOf",
+          "minLength", "maxLength", "pattern", "minItems", "maxItems", "uniqueItems",
+          "minProperties", "maxProperties", "required")
+
+
+def admitted(n: Norm) -> dict | None:
+    """The enum values this node admits by its type and scalar keywords (canonical key ->
+    value), or None where it has no enum. Checked with jsonschema's own validator."""
+    if n.enum is None:
+        return None
+    values = {canonical(v): v for v in n.enum if covered(json_type(v), n.types)}
+    node = n.node.value
+    local = {k: node[k] for k in SCALAR if isinstance(node, dict) and k in node}
+    if local and values:
+        from .jsonschema import validator_class
+
+        check = validator_class(n.node.draft)(local)
+        try:
+            values = {k: v for k, v in values.items() if check.is_valid(v)}
+        except Exception:  # noqa: BLE001 - a pattern the validator cannot compile: keep all
+            pass
+    return values
+
+
+def both_enums(a: Norm, b: Norm) -> bool:
+    """With an enum on both sides the value sets are finite and compared exactly (cmp_enum)."""
+    return a.enum is not None and b.enum is not None
+
+
 def cmp_type(ctx, a, b, path):
-    widened = sorted(t for t in b.types if not covered(t, a.types))
-    narrowed = sorted(t for t in a.types if not covered(t, b.types))
+    # type and enum together define the value set; with an enum it is finite, so the
+    # comparison looks at the values each side admits rather than at the type names.
+    xa, xb = admitted(a), admitted(b)
+    if xa is not None:
+        types_a = {json_type(v) for v in xa.values()}
+    else:
+        types_a = a.types
+    if xb is not None:
+        types_b = {json_type(v) for v in xb.values()}
+    else:
+        types_b = b.types
+    widened = sorted(t for t in types_b if not covered(t, a.types)) if xa is None else []
+    narrowed = sorted(t for t in types_a if not covered(t, b.types)) if xb is None else []
     if widened:
         ctx.emit("jsonschema-type-widened", path, a, b, "/type", a.types, b.types, types=widened)
     if narrowed:
@@ -197,16 +269,15 @@ def cmp_enum(ctx, a, b, path):
     if a.enum is None and b.enum is None:
         return
     kw = "/enum" if "enum" in (b.node.value if isinstance(b.node.value, dict) else {}) else "/const"
-    if a.enum is None:
-        ctx.emit("jsonschema-enum-introduced", path, a, b, kw, None, list(b.enum), values=list(b.enum))
+    xa, xb = admitted(a), admitted(b)
+    if xa is None:
+        ctx.emit("jsonschema-enum-introduced", path, a, b, kw, None, list(b.enum), values=list(xb.values()))
         return
-    if b.enum is None:
-        ctx.emit("jsonschema-enum-dropped", path, a, b, kw, list(a.enum), None, values=list(a.enum))
+    if xb is None:  # values the new types no longer admit: cmp_type reports them
+        ctx.emit("jsonschema-enum-dropped", path, a, b, kw, list(a.enum), None, values=list(xa.values()))
         return
-    ka = {canonical(v): v for v in a.enum}
-    kb = {canonical(v): v for v in b.enum}
-    added = [v for k, v in kb.items() if k not in ka]
-    removed = [v for k, v in ka.items() if k not in kb]
+    added = [v for k, v in xb.items() if k not in xa]
+    removed = [v for k, v in xa.items() if k not in xb]
     if added:
         ctx.emit("jsonschema-enum-value-added", path, a, b, kw, list(a.enum), list(b.enum), values=added)
     if removed:
@@ -237,7 +308,7 @@ def _looser(x, y, lower: bool) -> bool:
 
 
 def cmp_numbers(ctx, a, b, path):
-    if not shared(a, b, "number"):
+    if not shared(a, b, "number") or both_enums(a, b):
         return
     for attr, name, lower in (("lower", "minimum", True), ("upper", "maximum", False)):
         x, y = getattr(a, attr), getattr(b, attr)
@@ -259,7 +330,7 @@ def cmp_numbers(ctx, a, b, path):
 
 
 def cmp_strings(ctx, a, b, path):
-    if not shared(a, b, "string"):
+    if not shared(a, b, "string") or both_enums(a, b):
         return
     _count(ctx, a, b, path, "min_length", "/minLength", "min-length", True)
     _count(ctx, a, b, path, "max_length", "/maxLength", "max-length", False)
@@ -553,8 +624,8 @@ def cmp_remote(ctx, a, b, path):
     if a.remote == b.remote:
         ctx.emit("jsonschema-remote-reference-unchanged", path, a, b, "/$ref", uri=", ".join(a.remote))
         return
-    for uri in sorted(set(a.remote) ^ set(b.remote)) or sorted(set(a.remote)):
-        ctx.emit("jsonschema-remote-reference-not-followed", path, a, b, "/$ref", uri=uri)
+    ctx.emit("jsonschema-remote-reference-not-followed", path, a, b, "/$ref",
+             uri=", ".join(sorted(set(a.remote) ^ set(b.remote))))
 
 
 # ---------------------------------------------------------------- annotations

@@ -207,3 +207,27 @@ def test_unknown_format_setting_is_bad_usage(tmp_path):
     path = write(tmp_path, "a.json", {"$schema": D2020})
     with pytest.raises(InputError, match="format"):
         adapter.load(path, "a.json", Options(settings={"format": "sometimes"}))
+
+
+def test_example_scenario_service_notice():
+    # schemas_example: a compatible widening (enum values, a property under a closed
+    # model), a narrowing (district maxLength), an x-unit annotated duration left alone.
+    root = Path(__file__).resolve().parents[2] / "schemas_example"
+    report = linter.check(root / "v1" / "service_notice.json", root / "v2" / "service_notice.json", mode="backward")
+    assert {(f.rule, f.path) for f in report.findings} == {
+        ("J033", "area.district"), ("J070", "bottled_water_point"), ("J012", "channels"), ("J012", "kind")}
+    assert report.compatibility.value == "breaking" and not report.passed
+    schema = adapter.load(root / "v1" / "service_notice.json", "service_notice.json", Options())
+    assert "expected_duration" in schema.fields["urn:utility:service-notice"]
+
+
+def test_undecided_counts_as_breaking_unless_the_policy_says_otherwise():
+    from linter.engine import Policy
+
+    case = Path(__file__).resolve().parents[1] / "cases" / "jsonschema" / "pattern-changed"
+    strict = linter.check(case / "old.json", case / "new.json", mode="backward")
+    assert strict.compatibility.value == "breaking" and not strict.passed
+    lenient = linter.check(case / "old.json", case / "new.json",
+                           policy=Policy(mode="backward", undecided="compatible"))
+    (finding,) = lenient.findings
+    assert finding.undecided and lenient.compatibility.value == "full" and lenient.passed

@@ -228,3 +228,31 @@ def test_oracle_sees_both_kinds_of_direction():
     # Guards the oracle itself: a verdict function that said everything was breaking
     # (or compatible) would make one of the two tests above vacuous.
     assert len(COMPATIBLE) >= 40 and len(BREAKING) >= 40
+
+
+def _verdict_of(old, new):
+    import tempfile
+
+    with tempfile.TemporaryDirectory() as tmp:
+        report = linter.check(write(Path(tmp), "old.json", old), write(Path(tmp), "new.json", new), mode="none")
+    structural = [f for f in report.findings if not CAT.get(f.rule).semantic]
+    return all(f.compatibility.backward for f in structural), all(f.compatibility.forward for f in structural)
+
+
+@pytest.mark.slow
+@settings(max_examples=60, deadline=None, suppress_health_check=list(HealthCheck))
+@given(names=st.lists(st.sampled_from(sorted(MUTATIONS)), min_size=2, max_size=3, unique=True), data=st.data())
+def test_combined_mutations_are_judged_soundly(names, data):
+    # Several keywords changed at once: the verdict is the meet of the per-keyword ones,
+    # and each direction called compatible must still accept every generated instance.
+    mutated = BASE
+    for name in names:
+        mutated = MUTATIONS[name](mutated)
+    backward, forward = _verdict_of(BASE, mutated)
+    for ok, src, dst in ((backward, BASE, mutated), (forward, mutated, BASE)):
+        strat = strategy(src)
+        if not ok or strat is None:
+            continue
+        instance = data.draw(strat)
+        if validator(src).is_valid(instance):
+            assert validator(dst).is_valid(instance), (names, instance)
