@@ -190,13 +190,14 @@ def test_announce_exits_0_when_the_mode_is_kept(tree, capsys):
 EXAMPLE_VERDICTS = {
     "leak-detection": "must-be-told",
     "billing": "must-be-told",
-    "customer-portal": "informed",
-    "network-planning": "informed",
+    "customer-portal": "must-be-told",   # the service notice narrows area.district
+    "network-planning": "informed",      # pump telemetry breaks only the JSON mapping
     "data-archive": "must-be-told",
 }
 # Fields for which a consumer must be told (schema:path), where the example is meant to show it.
 EXAMPLE_TOLD_FOR = {
     "billing": {"utility.metering.MeterReading:volume"},
+    "customer-portal": {"urn:utility:service-notice:area.district"},
 }
 # ============================================================================================
 
