@@ -107,6 +107,12 @@ def _section(consumer: dict, findings) -> list[str]:
         if f.advice:
             lines.append(f"  - What to do: {esc(f.advice)}")
         lines.append(f"  - Rule {f.rule}; {esc(f.reference)}")
+        witness = f.extra.get("witness")
+        if witness and witness.get("confirmed"):  # announce --witness: an example in hand
+            import json
+
+            datum = json.dumps(witness["datum"], ensure_ascii=False, default=str)
+            lines.append(f"  - Example ({witness['direction']}): {code(datum)}: {esc(witness['outcome'])}")
     rest = [findings[i] for i in consumer["findings"] if i not in told]
     if rest:
         needs = consumer.get("needs", "none")

@@ -197,10 +197,65 @@ def parse_files(paths) -> Catalogue:
     return Catalogue(tuple(rules))
 
 
+class LazyCatalogue:
+    """The catalogue, read one rule file at a time as a run asks for kinds.
+
+    Parsing every rule file costs more than the rest of a small run's start-up (tomllib is
+    pure Python; benchmarks/startup.py), and a run on Avro files needs avro.toml and the
+    format-blind files only. A kind is looked up in the file named for its prefix
+    (``avro-...`` -> avro.toml), then in the files not named for a format; anything else
+    (listing, lookup by id, a kind found nowhere) reads and checks the whole catalogue.
+    """
+
+    def __init__(self, files: list[Path]):
+        self._files = {path.stem: path for path in files}
+        self._parts: dict[str, Catalogue] = {}
+        self._full: Catalogue | None = None
+
+    def full(self) -> Catalogue:
+        if self._full is None:
+            self._full = parse_files(self._files.values())
+        return self._full
+
+    def _part(self, stem: str) -> Catalogue:
+        if stem not in self._parts:
+            self._parts[stem] = parse_files([self._files[stem]])
+        return self._parts[stem]
+
+    def for_kind(self, kind: str) -> Rule | None:
+        if self._full is None:
+            from .formats import FORMATS
+
+            prefix = kind.split("-", 1)[0]
+            stems = [prefix] if prefix in FORMATS and prefix in self._files else []
+            stems += [s for s in self._files if s not in FORMATS]
+            for stem in stems:
+                rule = self._part(stem).for_kind(kind)
+                if rule is not None:
+                    return rule
+        return self.full().for_kind(kind)
+
+    @property
+    def rules(self) -> tuple[Rule, ...]:
+        return self.full().rules
+
+    def get(self, key: str) -> Rule | None:
+        return self.full().get(key)
+
+    def kinds(self) -> set[str]:
+        return self.full().kinds()
+
+    def __iter__(self):
+        return iter(self.full())
+
+    def __len__(self):
+        return len(self.full())
+
+
 @lru_cache(maxsize=1)
-def load() -> Catalogue:
+def load() -> LazyCatalogue:
     directory = rules_dir()
     files = sorted(directory.glob("*.toml"))
     if not files:
         raise CatalogueError(f"no rule files found in {directory}")
-    return parse_files(files)
+    return LazyCatalogue(files)

@@ -73,24 +73,36 @@ def check(paths, mode, format_, include, encodings, output, consumers, witness, 
 
 
 @cli.command()
-@click.argument("old", type=click.Path())
-@click.argument("new", type=click.Path())
-@click.option("--consumers", type=click.Path(), required=True,
-              help="Consumer registry (YAML) naming who reads which fields.")
-@click.option("--mode", type=click.Choice(MODES), default="backward", show_default=True,
-              help="The compatibility the change must keep (a consumer's own 'needs' wins).")
+@click.argument("paths", nargs=-1, type=click.Path(), metavar="OLD NEW | [PATHS]...")
+@click.option("--consumers", type=click.Path(), default=None,
+              help="Consumer registry (YAML) naming who reads which fields.  [default: the configuration's]")
+@click.option("--mode", type=click.Choice(MODES), default=None,
+              help="The compatibility the change must keep (a consumer's own 'needs' wins).  "
+                   "[default: backward, or the configuration's]")
 @click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
               help="Schema language, when the extension does not tell.")
 @click.option("-I", "--include", "include", multiple=True, type=click.Path(),
               help="Add a Protobuf import path (repeatable).")
+@click.option("--base", metavar="REF", default=None,
+              help="Announce the change from this git revision to the working tree; PATHS limit the files.")
+@click.option("--staged", is_flag=True, help="With git: announce what is staged, not the working tree.")
+@click.option("--config", "config_file", type=click.Path(dir_okay=False),
+              help="Configuration file (default: the nearest evolint.toml or pyproject.toml [tool.evolint]).")
 @click.option("--output", type=click.Choice(("markdown", "json")), default="markdown", show_default=True,
               help="Markdown to paste, or the same content as JSON.")
-def announce(old, new, consumers, mode, format_, include, output):
+@click.option("--witness", is_flag=True,
+              help="Add to each breaking change an example datum, confirmed by running the codec.")
+def announce(paths, consumers, mode, format_, include, base, staged, config_file, output, witness):
     """Write the announcement of a change: who must be told, and what changes for them."""
     from .announce import render as render_announcement
-    from .api import check as run_check
+    from .config import discover
+    from .errors import UsageError
+    from .runs import run_check
 
-    report = run_check(old, new, mode=mode, format=format_, include=include, consumers=consumers)
+    if not (consumers or discover(config_file, ".").consumers):
+        raise UsageError("announce needs a consumer registry: --consumers FILE, or consumers in the configuration")
+    report = run_check(paths, mode=mode, format=format_, include=include, base=base, staged=staged,
+                       config_file=config_file, consumers=consumers, witness=witness)
     render_announcement(report, sys.stdout, output)
     raise Failed(report.exit_code)
 
@@ -107,13 +119,15 @@ def announce(old, new, consumers, mode, format_, include, output):
               help="Add a Protobuf import path (repeatable).")
 @click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
               help="Report format.")
-def verify(old, new, samples, seed, format_, include, output):
+@click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
+              help="Also sample this encoding (Protobuf: json, the proto3 JSON mapping). Repeatable.")
+def verify(old, new, samples, seed, format_, include, output, encodings):
     """Test the static verdict of OLD -> NEW against the real codecs with random data."""
     from .verify import render as render_verify
     from .verify import verify as run_verify
 
     report = run_verify(old, new, samples=samples, seed=seed, format=format_, include=include,
-                        progress=sys.stderr.isatty())
+                        encodings=encodings, progress=sys.stderr.isatty())
     render_verify(report, output, sys.stdout)
     raise Failed(report.exit_code)
 

@@ -148,6 +148,7 @@ def _reason(index: int, finding: Finding, needs: str) -> Reason | None:
 def assess(consumer: Consumer, comparisons: Iterable[tuple[Comparison, Mapping, list]], mode: str) -> Impact:
     needs = consumer.needs or mode
     hits: dict[int, Finding] = {}
+    needs_at: dict[int, str] = {}  # without its own needs, a consumer relies on each pair's mode
     stale, unmatched = [], []
     for read in consumer.reads:
         matched, old_paths = False, None
@@ -159,6 +160,7 @@ def assess(consumer: Consumer, comparisons: Iterable[tuple[Comparison, Mapping, 
             for i, f in scope.findings:
                 if read.fields is None or any(p.overlaps(f.path) for p in read.fields):
                     hits[i] = f
+                    needs_at[i] = consumer.needs or comparison.mode or mode
             if scope.old_paths is not None:
                 old_paths = (old_paths or set()) | scope.old_paths
         if not matched:
@@ -168,7 +170,7 @@ def assess(consumer: Consumer, comparisons: Iterable[tuple[Comparison, Mapping, 
             stale += [Stale(consumer.name, read.schema, pattern.text) for pattern in read.fields
                       if not any(pattern.covers(p) for p in old_paths)]
     order = sorted(hits)
-    reasons = tuple(r for r in (_reason(i, hits[i], needs) for i in order) if r is not None)
+    reasons = tuple(r for r in (_reason(i, hits[i], needs_at[i]) for i in order) if r is not None)
     fields = tuple(dict.fromkeys(f"{hits[i].schema}:{hits[i].path}" if hits[i].path else hits[i].schema
                                  for i in order))
     return Impact(consumer, needs, tuple(order), reasons, fields, tuple(dict.fromkeys(stale)), tuple(unmatched))

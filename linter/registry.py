@@ -69,7 +69,12 @@ def load(path: str | Path) -> Registry:
     _check_nodes(root, display)
     import yaml
 
-    data = yaml.safe_load(text)  # the nodes passed the checks above, so this builds plain data
+    try:
+        data = yaml.safe_load(text)  # the nodes passed the checks above, so this builds plain data
+    except yaml.YAMLError as exc:  # what only the builder sees, e.g. `<<` merging a list
+        raise _yaml_error(exc, display) from None
+    except (ValueError, TypeError, OverflowError) as exc:  # a value check above missed
+        raise InputError(f"invalid YAML value: {exc}", display) from None
     _validate(data, root, display)
     return _build(data, root, display)
 
@@ -79,22 +84,30 @@ def _compose(text: str, display: str):
 
     try:
         return yaml.compose(text, Loader=yaml.SafeLoader)
-    except yaml.MarkedYAMLError as exc:
-        mark = exc.problem_mark or exc.context_mark
-        problem = " ".join(p for p in (exc.context, exc.problem) if p)
-        raise InputError(f"invalid YAML: {problem}", display,
-                         mark.line + 1 if mark else None, mark.column + 1 if mark else None) from None
     except yaml.YAMLError as exc:
-        raise InputError(f"invalid YAML: {exc}", display) from None
+        raise _yaml_error(exc, display) from None
     except RecursionError:
         raise InputError("YAML nested too deeply to read", display) from None
+
+
+def _yaml_error(exc, display: str) -> InputError:
+    import yaml
+
+    if isinstance(exc, yaml.MarkedYAMLError):
+        mark = exc.problem_mark or exc.context_mark
+        problem = " ".join(p for p in (exc.context, exc.problem) if p)
+        return InputError(f"invalid YAML: {problem}", display,
+                          mark.line + 1 if mark else None, mark.column + 1 if mark else None)
+    return InputError(f"invalid YAML: {exc}", display)
 
 
 def _check_nodes(root, display: str) -> None:
     """Refuse tags the safe loader would not build as plain data, and duplicate keys."""
     import yaml
 
-    allowed = {tag for tag in yaml.SafeLoader.yaml_constructors if tag}
+    merge = "tag:yaml.org,2002:merge"  # the `<<` key: the composer resolves it, the builder merges it
+    allowed = {tag for tag in yaml.SafeLoader.yaml_constructors if tag} | {merge}
+    builder = yaml.SafeLoader("")
     stack, seen = [root], set()
     while stack:
         node = stack.pop()
@@ -104,10 +117,18 @@ def _check_nodes(root, display: str) -> None:
         if node.tag not in allowed:
             raise InputError(f"YAML tag {_short_tag(node.tag)} is not allowed: the registry is plain data "
                              "(no object construction tags)", display, *_mark(node))
+        if isinstance(node, yaml.ScalarNode) and node.tag not in ("tag:yaml.org,2002:str", merge):
+            try:  # constructors raise bare ValueErrors, e.g. for an impossible date or `!!int x`
+                builder.yaml_constructors[node.tag](builder, node)
+            except (ValueError, TypeError, OverflowError, yaml.YAMLError) as exc:
+                raise InputError(f"invalid {_short_tag(node.tag)} value {node.value!r}: {exc}",
+                                 display, *_mark(node)) from None
         if isinstance(node, yaml.MappingNode):
             keys = {}
             for key, value in node.value:
-                if isinstance(key, yaml.ScalarNode) and key.tag != "tag:yaml.org,2002:merge":
+                if not isinstance(key, yaml.ScalarNode):
+                    raise InputError("a key must be plain text, not a list or a mapping", display, *_mark(key))
+                if key.tag != merge:
                     if key.value in keys:
                         raise InputError(f"duplicate key {key.value!r} (first at line {keys[key.value]})",
                                          display, *_mark(key))

@@ -138,6 +138,9 @@ def check(ref: str = "HEAD", paths: Iterable[str] = (), *, staged: bool = False,
         comparisons.append(expired)
     report = Report(mode=run_mode, comparisons=comparisons,
                     settings={"base": ref, "staged": staged})
+    counted = encodings if encodings is not None else config.encodings
+    if counted:
+        report.settings["encodings"] = list(counted)
     if skipped:
         report.warnings.append(f"skipped {len(skipped)} .json file(s) that are neither JSON Schema nor Avro: "
                                f"{', '.join(skipped[:5])}{' ...' if len(skipped) > 5 else ''} "

@@ -47,4 +47,7 @@ def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | No
         policy=lambda pair: config.policy(pair.new or pair.old, mode=mode, encodings=encodings),
         options=api.Options(include=tuple(include) + config.include), consumers=consumers,
         witness=witness)
+    counted = encodings if encodings is not None else config.encodings
+    if counted:  # the policy is per file, so name the encodings counted here
+        report.settings["encodings"] = list(counted)
     return with_expired(report, config)

@@ -12,7 +12,9 @@ from __future__ import annotations
 import bisect
 import re
 
-_TOKENS = re.compile(r'"(?:[^"\\]|\\.)*"|[{\[]')
+# Strings in the unrolled form (runs of plain characters, then one escape): the same
+# language as "(?:[^"\\]|\\.)*", about a quarter faster on large files (benchmarks/scale.py).
+_TOKENS = re.compile(r'"[^"\\]*(?:\\.[^"\\]*)*"|[{\[]')
 _SPACE = re.compile(r"\s*")
 
 

@@ -35,6 +35,8 @@ class Result:
     departures: int = 0        # failures of the codec where the specification says data resolve
     example: Trial | None = None
     departure: str | None = None
+    semantic_only: bool = False  # breaking only by changes of meaning, which no codec shows
+    encoding: str | None = None  # a further encoding sampled (protobuf: json); None: the main one
 
     @property
     def verdict(self) -> str:
@@ -49,6 +51,10 @@ class Result:
                "departures": self.departures, "verdict": self.verdict, "example": None}
         if self.departure:
             out["departure"] = self.departure
+        if self.semantic_only:
+            out["semantic_only"] = True
+        if self.encoding:
+            out["encoding"] = self.encoding
         if self.example is not None:
             out["example"] = {"datum": self.example.datum, "outcome": self.example.outcome}
         return out
@@ -79,14 +85,28 @@ class VerifyReport:
                 "results": [r.to_json() for r in self.results], "skipped": list(self.skipped)}
 
 
-def _static_ok(comparison: Comparison, root: str, direction: str) -> bool:
-    compat = meet_all(f.compatibility for f in comparison.findings if f.schema in (root, comparison.new,
-                                                                                    comparison.old))
+def _findings(comparison: Comparison, root: str):
+    return [f for f in comparison.findings if f.schema in (root, comparison.new, comparison.old)]
+
+
+def _effect(finding, encoding):
+    """A finding's compatibility for one encoding: its own effect there, where it has several."""
+    if not finding.effects:
+        return finding.compatibility
+    if encoding is None:
+        return next(iter(finding.effects.values()))  # the main encoding is listed first
+    return finding.effects.get(encoding, next(iter(finding.effects.values())))
+
+
+def _static_ok(comparison: Comparison, root: str, direction: str, structural: bool = False,
+               encoding: str | None = None) -> bool:
+    found = [f for f in _findings(comparison, root) if not (structural and (f.semantic or f.undecided))]
+    compat = meet_all(_effect(f, encoding) for f in found)
     return compat.backward if direction == "backward" else compat.forward
 
 
-def plan(comparisons: Iterable[Comparison], options=None) -> tuple[list, list[dict]]:
-    """(module, pair, comparison, root, direction) for every run to sample, and what was skipped."""
+def plan(comparisons: Iterable[Comparison], options=None, encodings=()) -> tuple[list, list[dict]]:
+    """(module, pair, comparison, root, direction, encoding) for every run to sample, and what was skipped."""
     jobs, skipped = [], []
     for comparison in comparisons:
         module = module_for(comparison.format)
@@ -99,22 +119,25 @@ def plan(comparisons: Iterable[Comparison], options=None) -> tuple[list, list[di
             skipped.append({"old": comparison.old, "new": comparison.new,
                             "reason": "a file was added or removed; there is no pair to run"})
             continue
-        for direction in DIRECTIONS:
-            writer, reader = pair.sides(direction)
-            for root in module.roots(writer, reader):
-                jobs.append((module, pair, comparison, root, direction))
+        further = [e for e in encodings if e in getattr(module, "ENCODINGS", ())]
+        for encoding in [None, *further]:
+            for direction in DIRECTIONS:
+                writer, reader = pair.sides(direction)
+                for root in module.roots(writer, reader):
+                    jobs.append((module, pair, comparison, root, direction, encoding))
     return jobs, skipped
 
 
 def sample(module, pair, comparison: Comparison, root: str, direction: str, samples: int, seed: int,
-           advance=None) -> Result:
+           advance=None, encoding: str | None = None) -> Result:
     writer, reader = pair.sides(direction)
     result = Result(comparison.old, comparison.new, comparison.format, root, direction,
-                    _static_ok(comparison, root, direction))
+                    _static_ok(comparison, root, direction, encoding=encoding), encoding=encoding)
+    result.semantic_only = not result.static_ok and _static_ok(comparison, root, direction, True, encoding)
     # A string seed is hashed deterministically (random.seed, version 2).
-    rng = random.Random(f"{seed}|{comparison.old}|{comparison.new}|{root}|{direction}")
+    rng = random.Random(f"{seed}|{comparison.old}|{comparison.new}|{root}|{direction}|{encoding or ''}")
     for _ in range(samples):
-        trial = module.run(writer, reader, root, module.random_datum(writer, root, rng))
+        trial = module.run(writer, reader, root, module.random_datum(writer, root, rng), encoding)
         if trial is None:
             result.skipped += 1
         else:
@@ -131,14 +154,18 @@ def sample(module, pair, comparison: Comparison, root: str, direction: str, samp
 
 
 def verify(old, new, *, samples: int = 200, seed: int = 0, format: str | None = None,
-           include=(), progress: bool = False) -> VerifyReport:
-    """Sample both directions of OLD -> NEW and compare what the codecs do with the static verdict."""
+           include=(), encodings=(), progress: bool = False) -> VerifyReport:
+    """Sample both directions of OLD -> NEW and compare what the codecs do with the static verdict.
+
+    ``encodings`` adds further encodings to sample (Protobuf: ``"json"``, the proto3 JSON
+    mapping), each set against the findings' effect on that encoding.
+    """
     from .api import check
     from .formats import Options
 
     options = Options(include=tuple(include))
     report = check(old, new, mode="none", format=format, options=options)
-    jobs, skipped = plan(report.comparisons, options)
+    jobs, skipped = plan(report.comparisons, options, tuple(encodings))
     out = VerifyReport(samples, seed, skipped=skipped)
     if progress and jobs:
         from rich.console import Console
@@ -146,10 +173,10 @@ def verify(old, new, *, samples: int = 200, seed: int = 0, format: str | None = 
 
         with Progress(console=Console(file=sys.stderr), transient=True) as bar:
             task = bar.add_task("sampling", total=len(jobs) * samples)
-            for job in jobs:
-                out.results.append(sample(*job, samples, seed, lambda: bar.advance(task)))
+            for *job, encoding in jobs:
+                out.results.append(sample(*job, samples, seed, lambda: bar.advance(task), encoding))
     else:
-        out.results.extend(sample(*job, samples, seed) for job in jobs)
+        out.results.extend(sample(*job, samples, seed, None, encoding) for *job, encoding in jobs)
     return out
 
 
@@ -163,8 +190,9 @@ def render_text(report: VerifyReport, stream) -> None:
     console.print(f"[bold]evolint verify[/] · {report.samples} samples per direction · seed {report.seed}")
     for r in report.results:
         style = {"agree": "green", "bug": "bold red", "not-shown": "yellow"}[r.verdict]
-        static = "compatible" if r.static_ok else "breaking"
-        console.print(f"  [{style}]{r.verdict:<9}[/] {r.direction:<8} [bold]{escape(r.schema)}[/]  "
+        static = "compatible" if r.static_ok else ("breaking (meaning only)" if r.semantic_only else "breaking")
+        via = f" ({r.encoding})" if r.encoding else ""
+        console.print(f"  [{style}]{r.verdict:<9}[/] {r.direction:<8} [bold]{escape(r.schema)}[/]{escape(via)}  "
                       f"[dim]{escape(r.old)} → {escape(r.new)}[/]  static {static}, "
                       f"{r.failures}/{r.samples} failed")
         if r.departures:

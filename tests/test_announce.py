@@ -190,13 +190,14 @@ def test_announce_exits_0_when_the_mode_is_kept(tree, capsys):
 EXAMPLE_VERDICTS = {
     "leak-detection": "must-be-told",
     "billing": "must-be-told",
-    "customer-portal": "must-be-told",  # service_notice.json narrows area.district (maxLength 40 -> 24)
-    "network-planning": "informed",
+    "customer-portal": "must-be-told",   # the service notice narrows area.district
+    "network-planning": "informed",      # pump telemetry breaks only the JSON mapping
     "data-archive": "must-be-told",
 }
 # Fields for which a consumer must be told (schema:path), where the example is meant to show it.
 EXAMPLE_TOLD_FOR = {
     "billing": {"utility.metering.MeterReading:volume"},
+    "customer-portal": {"urn:utility:service-notice:area.district"},
 }
 # ============================================================================================
 
@@ -273,3 +274,17 @@ consumers:
     # reason became required (breaks backward only); the unit of duration changed (semantic)
     assert {c["name"]: c["verdict"] for c in data["consumers"]} == {
         "portal": "must-be-told", "sms": "unaffected", "planner": "informed", "rota": "must-be-told"}
+
+
+def test_announce_takes_the_registry_and_modes_from_the_configuration(tree, capsys):
+    # A by-path mode "full" for meter.avsc: consumers without needs of their own rely on it
+    # there (docs/configuration.md, docs/consumers.md).
+    (tree / "evolint.toml").write_text('consumers = "consumers.yaml"\n\n'
+                                       '[[by-path]]\nfiles = "**/meter.avsc"\nmode = "full"\n')
+    with pytest.raises(SystemExit):
+        main(["announce", str(tree / "v1"), str(tree / "v2"), "--config", str(tree / "evolint.toml"),
+              "--output", "json"])
+    data = json.loads(capsys.readouterr().out)
+    # f reads site.*: the removal of site.district breaks forward, which "full" needs
+    assert data["announcement"]["told"] == ["a", "d", "f", "g"]
+    assert data["announcement"]["informed"] == []

@@ -4,16 +4,10 @@ import json
 
 import pytest
 
-from fake_avro import use_avro
 from gitrepo import leak_alert, meter_reading
 from linter import config
 from linter.cli import main
 from linter.errors import UsageError
-
-
-@pytest.fixture
-def avro(monkeypatch):
-    return use_avro(monkeypatch)
 
 
 @pytest.fixture
@@ -85,7 +79,7 @@ def test_explicit_config_file_that_is_missing(project, capsys):
     assert status == 2 and "nope.toml: no such configuration file" in err
 
 
-def test_waiver_silences_its_rule_for_matching_files(project, capsys, avro):
+def test_waiver_silences_its_rule_for_matching_files(project, capsys):
     status, data = check_json(capsys)
     assert status == 1 and [f["rule"] for f in data["findings"]] == ["G001"]
     (project / "evolint.toml").write_text(
@@ -99,7 +93,7 @@ def test_waiver_silences_its_rule_for_matching_files(project, capsys, avro):
     assert status == 1
 
 
-def test_expired_waiver_stops_silencing_and_becomes_a_finding(project, capsys, avro, validate_report):
+def test_expired_waiver_stops_silencing_and_becomes_a_finding(project, capsys, validate_report):
     (project / "evolint.toml").write_text(
         '# waivers\n[[waive]]\nrule = "G001"\nreason = "consumers migrate first"\nuntil = 2020-01-31\n')
     status, data = check_json(capsys)
@@ -118,7 +112,7 @@ def test_waiver_until_today_still_holds():
     assert not waiver.expired(today) and waiver.expired(today + dt.timedelta(days=1))
 
 
-def test_mode_per_path_and_the_command_line_wins(project, capsys, avro):
+def test_mode_per_path_and_the_command_line_wins(project, capsys):
     (project / "evolint.toml").write_text('mode = "full"\n[[by-path]]\nfiles = "v2/**"\nmode = "none"\n')
     status, data = check_json(capsys)
     # G001 is about a removed file: it matches through its OLD path, which v2/** does not cover
@@ -130,7 +124,7 @@ def test_mode_per_path_and_the_command_line_wins(project, capsys, avro):
     assert status == 1 and "mode" not in data["comparisons"][0]
 
 
-def test_severity_override(project, capsys, avro):
+def test_severity_override(project, capsys):
     (project / "v1" / "leak_alert.avsc").unlink()
     (project / "v2" / "billing.avsc").write_text(json.dumps(
         {"type": "record", "name": "BillingPeriod", "namespace": "utility.billing", "fields": []}))

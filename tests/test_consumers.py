@@ -4,6 +4,7 @@ Impact is tested on synthetic findings, so it does not depend on any format adap
 the end-to-end checks on schemas_example/ are in tests/test_announce.py.
 """
 import json
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -109,7 +110,13 @@ BAD = {
                    + "".join(f"{n}: &{n} [{', '.join(['*' + p] * 10)}]\n" for p, n in zip("abcdef", "bcdefg"))
                    + "consumers: *g\n", 1, "expands to more than 100000 values"),
     "self-reference": ("consumers: &a [*a]\n", 1, "refers to itself"),
+    "complex key": ("consumers:\n  - ? name: billing\n    contact: b@example.org\n", 2, "key must be plain text"),
+    "bad timestamp": ("consumers:\n  - name: 2026-13-45\n", 2, "invalid !!timestamp value '2026-13-45'"),
+    "bad int": ("consumers:\n  - name: !!int twelve\n", 2, "invalid !!int value 'twelve'"),
     "deep nesting": ("consumers: " + "[" * 1200 + "]" * 1200 + "\n", None, "nested too deeply"),
+    # found by the fuzz suite: a mapping used as a key composes, but is not plain data
+    "mapping as a key": ("consumers:\n  - name: a\n    reads:\n      - schema: x\n    ?  fields: [a]\n",
+                         5, "a key must be plain text"),
 }
 
 
@@ -128,6 +135,12 @@ def test_anchors_can_share_field_lists(tmp_path):
                                     "  - {name: a, contact: a@example.org, reads: [{schema: s, fields: *meter}]}\n"
                                     "  - {name: b, contact: b@example.org, reads: [{schema: s, fields: *meter}]}\n"))
     assert [[p.text for p in c.reads[0].fields] for c in registry.consumers] == [["meter_id", "volume"]] * 2
+
+
+def test_merge_keys_share_whole_entries(tmp_path):
+    registry = consumers.load(write(tmp_path, "x-base: &base {contact: a@example.org, reads: [{schema: s}]}\n"
+                                    "consumers:\n  - <<: *base\n    name: a\n  - <<: *base\n    name: b\n"))
+    assert [(c.name, c.contact) for c in registry.consumers] == [("a", "a@example.org"), ("b", "a@example.org")]
 
 
 def test_an_error_names_the_entry(tmp_path):
@@ -185,6 +198,16 @@ def test_semantic_and_undecided_findings_are_told_whatever_the_needs(registry):
     assert verdicts(found) == {"leak-detection": "must-be-told", "billing": "must-be-told",
                                "network-planning": "unaffected", "data-archive": "must-be-told"}
     assert found[1].reasons[0].semantic and found[0].reasons[0].undecided
+
+
+def test_without_needs_a_consumer_relies_on_the_mode_of_each_pair(registry):
+    # Configuration may set a mode per path; billing has no needs of its own.
+    strict = replace(comparison(finding("volume", Compat.BACKWARD)), mode="full")
+    found = consumers.impacts([strict], registry, "backward")
+    assert verdicts(found)["billing"] == "must-be-told"
+    assert found[1].reasons[0].breaks == ("forward",)
+    loose = replace(strict, mode="none")
+    assert verdicts(consumers.impacts([loose], registry, "backward"))["billing"] == "informed"
 
 
 def test_full_needs_are_broken_by_either_direction(registry):

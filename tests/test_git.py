@@ -3,16 +3,10 @@ import json
 
 import pytest
 
-from fake_avro import use_avro
 from gitrepo import Repo, leak_alert, meter_reading
 from linter import git, revision
 from linter.cli import main
 from linter.errors import InputError
-
-
-@pytest.fixture
-def avro(monkeypatch):
-    return use_avro(monkeypatch)
 
 
 @pytest.fixture
@@ -76,7 +70,7 @@ def test_outside_a_repository_is_an_input_error(tmp_path):
         git.toplevel(tmp_path)
 
 
-def test_deleted_schema_file_is_breaking(repo, avro, capsys, monkeypatch, validate_report):
+def test_deleted_schema_file_is_breaking(repo, capsys, monkeypatch, validate_report):
     repo.git("rm", "-q", "schemas/leak_alert.avsc")
     status, out, _ = run_cli(["check", "--base", "HEAD", "--output", "json"], capsys, repo.path, monkeypatch)
     data = validate_report(out)
@@ -86,7 +80,7 @@ def test_deleted_schema_file_is_breaking(repo, avro, capsys, monkeypatch, valida
     assert data["compatibility"] == "breaking"
 
 
-def test_added_schema_file_passes(repo, avro, capsys, monkeypatch, validate_report):
+def test_added_schema_file_passes(repo, capsys, monkeypatch, validate_report):
     repo.write("schemas/billing_period.avsc", {"type": "record", "name": "BillingPeriod",
                                                "namespace": "utility.billing", "fields": []})
     status, out, _ = run_cli(["check", "--base", "HEAD", "--output", "json"], capsys, repo.path, monkeypatch)
@@ -95,7 +89,7 @@ def test_added_schema_file_passes(repo, avro, capsys, monkeypatch, validate_repo
     assert [f["rule"] for f in data["findings"]] == ["G002"]  # untracked files count as added
 
 
-def test_rename_is_paired_not_reported_as_remove_and_add(repo, avro, capsys, monkeypatch, validate_report):
+def test_rename_is_paired_not_reported_as_remove_and_add(repo, capsys, monkeypatch, validate_report):
     repo.git("mv", "schemas/leak_alert.avsc", "schemas/leaks.avsc")
     status, out, _ = run_cli(["check", "--staged", "--output", "json"], capsys, repo.path, monkeypatch)
     data = validate_report(out)
@@ -105,7 +99,7 @@ def test_rename_is_paired_not_reported_as_remove_and_add(repo, avro, capsys, mon
                                     "format": "avro", "compatibility": "full"}]
 
 
-def test_unit_change_in_working_tree_is_found_with_its_line(repo, avro, capsys, monkeypatch, validate_report):
+def test_unit_change_in_working_tree_is_found_with_its_line(repo, capsys, monkeypatch, validate_report):
     repo.write("schemas/meter_reading.avsc", meter_reading("m3"))
     status, out, _ = run_cli(["check", "--base", "HEAD", "--output", "json"], capsys, repo.path, monkeypatch)
     data = validate_report(out)
@@ -115,7 +109,7 @@ def test_unit_change_in_working_tree_is_found_with_its_line(repo, avro, capsys, 
     assert unit[0]["new"]["file"] == "schemas/meter_reading.avsc"
 
 
-def test_staged_compares_the_index_not_the_working_tree(repo, avro, capsys, monkeypatch):
+def test_staged_compares_the_index_not_the_working_tree(repo, capsys, monkeypatch):
     repo.write("schemas/meter_reading.avsc", meter_reading("m3"))
     # nothing staged yet: the index equals HEAD
     status, out, _ = run_cli(["check", "--staged", "--output", "json"], capsys, repo.path, monkeypatch)
@@ -128,7 +122,7 @@ def test_staged_compares_the_index_not_the_working_tree(repo, avro, capsys, monk
     assert status == 0  # the working tree holds L again
 
 
-def test_paths_limit_the_files(repo, avro, capsys, monkeypatch):
+def test_paths_limit_the_files(repo, capsys, monkeypatch):
     repo.write("schemas/meter_reading.avsc", meter_reading("m3"))
     repo.git("rm", "-q", "schemas/leak_alert.avsc")
     status, out, _ = run_cli(["check", "--base", "HEAD", "--output", "json", "schemas/leak_alert.avsc"],
@@ -136,14 +130,14 @@ def test_paths_limit_the_files(repo, avro, capsys, monkeypatch):
     assert [c["new"] for c in json.loads(out)["comparisons"]] == ["/dev/null"]
 
 
-def test_paths_are_shown_relative_to_the_current_folder(repo, avro, capsys, monkeypatch):
+def test_paths_are_shown_relative_to_the_current_folder(repo, capsys, monkeypatch):
     repo.git("rm", "-q", "schemas/leak_alert.avsc")
     status, out, _ = run_cli(["check", "--base", "HEAD", "--output", "json"], capsys, repo.path / "schemas",
                              monkeypatch)
     assert json.loads(out)["comparisons"][0]["old"] == "HEAD:leak_alert.avsc"
 
 
-def test_an_older_base_and_nothing_written_into_the_tree(repo, avro, capsys, monkeypatch):
+def test_an_older_base_and_nothing_written_into_the_tree(repo, capsys, monkeypatch):
     repo.write("schemas/meter_reading.avsc", meter_reading("m3"))
     repo.commit("cubic metres")
     before = repo.status()
@@ -153,7 +147,7 @@ def test_an_older_base_and_nothing_written_into_the_tree(repo, avro, capsys, mon
     assert repo.status() == before == ""
 
 
-def test_json_files_that_are_not_schemas_are_skipped_with_a_warning(repo, avro, capsys, monkeypatch):
+def test_json_files_that_are_not_schemas_are_skipped_with_a_warning(repo, capsys, monkeypatch):
     repo.write("package.json", {"name": "dashboard", "version": "1.0.0"})
     repo.write("schemas/notice.json", {"$schema": "https://json-schema.org/draft/2020-12/schema",
                                        "$id": "urn:utility:service-notice", "type": "object"})
@@ -162,7 +156,7 @@ def test_json_files_that_are_not_schemas_are_skipped_with_a_warning(repo, avro, 
     assert "package.json" in report.warnings[0]
 
 
-def test_first_commit_has_everything_added(tmp_path, avro, capsys, monkeypatch):
+def test_first_commit_has_everything_added(tmp_path, capsys, monkeypatch):
     repo = Repo(tmp_path / "fresh")
     repo.write("meter_reading.avsc", meter_reading())
     repo.git("add", "-A")
@@ -230,3 +224,22 @@ def test_git_run_finds_what_a_folder_run_finds(tmp_path):
     in_folders = api.check(example / "v1", example / "v2")
     assert in_git.findings and key(in_git) == key(in_folders)
     assert in_git.compatibility == in_folders.compatibility
+
+
+def test_protobuf_files_that_import_each_other_both_changed(repo):
+    """Both sides compile with their own revision of the imported file (real protoc)."""
+    pytest.importorskip("linter.formats.protobuf")
+    repo.write("proto/common.proto", 'syntax = "proto3";\npackage utility.telemetry;\n'
+                                     "message Pressure { double value = 1; }\n")
+    repo.write("proto/pump_status.proto", 'syntax = "proto3";\npackage utility.telemetry;\nimport "common.proto";\n'
+                                          "message PumpStatus {\n  string pump_id = 1;\n  Pressure outlet = 2;\n}\n")
+    repo.commit("telemetry")
+    repo.write("proto/common.proto", 'syntax = "proto3";\npackage utility.telemetry;\n'
+                                     "message Pressure { float value = 1; }\n")
+    repo.write("proto/pump_status.proto", 'syntax = "proto3";\npackage utility.telemetry;\nimport "common.proto";\n'
+                                          "message PumpStatus {\n  string pump_id = 1;\n  Pressure outlet = 2;\n"
+                                          "  int32 speed = 3;\n}\n")
+    report = revision.check("HEAD", cwd=repo.path)
+    got = {(f.schema, f.path) for f in report.findings}
+    assert got == {("utility.telemetry.Pressure", "value"), ("utility.telemetry.PumpStatus", "speed")}
+    assert report.compatibility.value == "breaking"

@@ -3,18 +3,12 @@ import json
 
 import pytest
 
-from fake_avro import use_avro
 from gitrepo import Repo, leak_alert, meter_reading
 from linter import history
 from linter.cli import main
 from linter.errors import UsageError
 
 UNITS = ["L", "L", "m3", "m3", "L"]  # v3 changes the unit, v5 changes it back
-
-
-@pytest.fixture
-def avro(monkeypatch):
-    return use_avro(monkeypatch)
 
 
 def run(args, capsys):
@@ -40,7 +34,7 @@ def test_numbered_files_sort_as_numbers(tmp_path):
                                            "leak_alert.10.avsc"]
 
 
-def test_each_version_against_its_predecessor(numbered_files, avro, capsys, validate_report):
+def test_each_version_against_its_predecessor(numbered_files, capsys, validate_report):
     status, out, _ = run(["history", str(numbered_files), "--output", "json"], capsys)
     data = json.loads(out)
     assert status == 1 and data["passed"] is False
@@ -53,7 +47,7 @@ def test_each_version_against_its_predecessor(numbered_files, avro, capsys, vali
         validate_report(step["report"])
 
 
-def test_every_earlier_compares_all_pairs(numbered_files, avro):
+def test_every_earlier_compares_all_pairs(numbered_files):
     result = history.run(numbered_files, every_earlier=True)
     assert len(result.steps) == 10  # 5 versions: 4 + 3 + 2 + 1
     # v5 against v1 and v2 keeps the unit (L), against v3 and v4 it does not
@@ -62,12 +56,12 @@ def test_every_earlier_compares_all_pairs(numbered_files, avro):
                           "meter_reading.3.avsc": False, "meter_reading.4.avsc": False}
 
 
-def test_a_numbered_file_finds_its_siblings(numbered_files, avro):
+def test_a_numbered_file_finds_its_siblings(numbered_files):
     result = history.run(numbered_files / "meter_reading.3.avsc")
     assert len(result.steps) == 4
 
 
-def test_numbered_folders_pair_by_relative_path(tmp_path, avro, capsys):
+def test_numbered_folders_pair_by_relative_path(tmp_path, capsys):
     for n in (1, 2, 10):
         folder = tmp_path / f"v{n}"
         folder.mkdir()
@@ -83,7 +77,7 @@ def test_numbered_folders_pair_by_relative_path(tmp_path, avro, capsys):
     assert lines[-1] == "FAIL 2 steps, 1 failing mode 'backward'"
 
 
-def test_git_history_follows_the_file(tmp_path, avro, capsys, monkeypatch):
+def test_git_history_follows_the_file(tmp_path, capsys, monkeypatch):
     repo = Repo(tmp_path / "utility")
     repo.write("meter.avsc", meter_reading("L"))
     first = repo.commit("litres")

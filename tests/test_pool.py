@@ -3,7 +3,6 @@ import json
 
 import pytest
 
-from fake_avro import use_avro
 from gitrepo import meter_reading
 from linter import api, pool
 from linter.errors import InputError
@@ -11,8 +10,7 @@ from linter.report.json import to_json
 
 
 @pytest.fixture
-def folders(tmp_path, monkeypatch):
-    use_avro(monkeypatch)
+def folders(tmp_path):
     old, new = tmp_path / "v1", tmp_path / "v2"
     for n in range(60):
         unit = "m3" if n % 7 == 0 else "L"

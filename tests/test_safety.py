@@ -105,6 +105,30 @@ def test_the_probe_sees_a_heavy_import():
     assert "jsonschema" in json.loads(proc.stdout.strip().splitlines()[-1])["loaded"]
 
 
+def test_lazy_catalogue_finds_every_kind_as_the_full_one_does():
+    from linter.catalogue import LazyCatalogue, load, rules_dir
+
+    full = load().full()
+    lazy = LazyCatalogue(sorted(rules_dir().glob("*.toml")))
+    for rule in full:
+        assert lazy.for_kind(rule.kind) == rule
+    assert lazy._full is None  # every kind was found in its own file, none by the fallback
+    assert lazy.for_kind("no-such-kind") is None and lazy._full is not None
+
+
+@needs(ADAPTER["avro"])
+def test_avro_run_reads_only_the_rule_files_it_needs(tmp_path):
+    old, new = write_pair(tmp_path, "avro")
+    probe = ("import json, sys\nfrom linter import catalogue, cli\ntry:\n    cli.main(sys.argv[1:])\n"
+             "except SystemExit:\n    pass\ncat = catalogue.load()\n"
+             "print(json.dumps({'parts': sorted(cat._parts), 'full': cat._full is not None}))")
+    proc = subprocess.run([sys.executable, "-c", probe, "check", old, new, "--output", "json"],
+                          capture_output=True, text=True)
+    data = json.loads(proc.stdout.strip().splitlines()[-1])
+    assert data["full"] is False
+    assert set(data["parts"]) <= {"avro", "general", "semantic"}
+
+
 # --- size cap ----------------------------------------------------------------------------
 
 @pytest.mark.parametrize("fmt", SAMPLES)
@@ -471,3 +495,64 @@ def test_format_detection_takes_any_json_value(doc):
     from linter.formats import looks_like_avro
 
     assert looks_like_avro(doc) is False
+
+
+# --- assumptions the speed fixes rest on -------------------------------------------------
+
+@needs(ADAPTER["avro"])
+def test_fastavro_leaves_its_input_unchanged():
+    # The Avro adapter hands fastavro its own parsed document without a defensive copy.
+    import copy
+
+    import fastavro
+
+    docs = [json.loads(p.read_text()) for p in sorted(ROOT.glob("tests/cases/avro/*/*.avsc"))]
+    docs += [json.loads(p.read_text()) for p in sorted(ROOT.glob("schemas_example/*/*.avsc"))]
+    assert len(docs) > 20
+    for doc in docs:
+        before = copy.deepcopy(doc)
+        try:
+            fastavro.parse_schema(doc, _write_hint=False)
+        except Exception:  # noqa: BLE001 - invalid cases are part of the sample
+            pass
+        assert doc == before
+
+
+@needs(ADAPTER["avro"])
+def test_field_pairing_by_name_then_aliases_in_old_order():
+    from linter.formats.avro import _pair_fields
+    from linter.formats.avro_schema import Field, Node
+
+    def rec(*fields):
+        return Node(kind="record", fields=[Field(name=n, type=Node(kind="int"), position=i, aliases=tuple(a))
+                                           for i, (n, a) in enumerate(fields)])
+
+    old = rec(("a", []), ("b", []), ("c", ["z"]), ("d", []))
+    new = rec(("x", ["d", "b"]), ("a", []), ("z", []), ("e", []))
+    pairs, old_left, new_left = _pair_fields(old, new)
+    assert [(o.name, n.name) for o, n in pairs] == [("a", "a"), ("b", "x"), ("c", "z")]
+    assert [f.name for f in old_left] == ["d"] and [f.name for f in new_left] == ["e"]
+    assert old.field("c").name == "c" and old.field("nope") is None
+
+
+def test_sourcemap_tokens_match_the_plain_string_pattern():
+    # The unrolled string pattern in linter/sourcemap.py must split JSON text exactly as
+    # the plain one does; random JSON with quotes, escapes and brackets inside strings.
+    import re
+
+    from hypothesis import given
+    from hypothesis import strategies as st
+
+    from linter.sourcemap import _TOKENS
+
+    plain = re.compile(r'"(?:[^"\\]|\\.)*"|[{\[]')
+    text = st.text(alphabet='ab"\\[]{}\n\u00e9', max_size=10)
+    docs = st.recursive(text | st.integers(), lambda kids: st.lists(kids, max_size=4)
+                        | st.dictionaries(text, kids, max_size=4), max_leaves=20)
+
+    @given(docs, st.booleans())
+    def same(doc, ascii_only):
+        dumped = json.dumps(doc, ensure_ascii=ascii_only)
+        assert [m.span() for m in _TOKENS.finditer(dumped)] == [m.span() for m in plain.finditer(dumped)]
+
+    same()

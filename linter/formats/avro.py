@@ -63,11 +63,14 @@ def load(path: Path, display: str, options: Options | None = None) -> Schema:
     text = read_text(Path(path), display)
     data = parse_json(text, display)
     sourcemap = SourceMap(text, data)
-    model = parse(data, display, sourcemap.locate)
-    _fastavro_gate(data, model, display)
-    roots = root_names(model.root, display)
-    fields = {root: frozenset(field_paths(model.names[root])) if root in model.names else frozenset()
-              for root in roots}
+    try:
+        model = parse(data, display, sourcemap.locate)
+        _fastavro_gate(data, model, display)
+        roots = root_names(model.root, display)
+        fields = {root: frozenset(field_paths(model.names[root])) if root in model.names else frozenset()
+                  for root in roots}
+    except RecursionError:
+        raise InputError("schema nested too deeply to read", display) from None
     return Schema("avro", display, roots, fields, Loaded(model, display, sourcemap))
 
 
@@ -79,12 +82,19 @@ def _fastavro_gate(data, model: Model, display: str) -> None:
     """
     from fastavro import parse_schema
 
-    memo: dict = {}
-    checked = copy.deepcopy(data, memo)
-    for obj in model.ignored_logical:
-        memo[id(obj)].pop("logicalType", None)
+    checked = data
+    if model.ignored_logical:
+        # Copy only to take logical types out; fastavro 1.13 leaves its input as it was
+        # (checked on every Avro file in tests/ and schemas_example/), and the copy cost
+        # more than fastavro's own parse on large schemas (benchmarks/scale.py).
+        memo: dict = {}
+        checked = copy.deepcopy(data, memo)
+        for obj in model.ignored_logical:
+            memo[id(obj)].pop("logicalType", None)
     try:
         parse_schema(checked, _write_hint=False)
+    except RecursionError:
+        raise
     except Exception as exc:  # noqa: BLE001 - fastavro raises many types; all mean bad input
         reason = " ".join(str(exc).split()) or type(exc).__name__
         raise InputError(f"not a valid Avro schema: {reason}", display) from None
@@ -128,7 +138,10 @@ def diff(old: Schema, new: Schema) -> list[Change]:
     differ = _Differ(old.model, new.model)
     o, n = old.model.model.root, new.model.model.root
     schema = o.name if o.named else (n.name if n.named else new.file)
-    differ.node(o, n, Ctx(schema, "", old.model.loc(o.raw), new.model.loc(n.raw), top=True))
+    try:
+        differ.node(o, n, Ctx(schema, "", old.model.loc(o.raw), new.model.loc(n.raw), top=True))
+    except RecursionError:
+        raise InputError("schemas nested too deeply to compare", new.file) from None
     return differ.changes
 
 
@@ -348,22 +361,39 @@ class _Differ:
 
 
 def _pair_fields(o: Node, n: Node):
-    """Fields by name, then by NEW's aliases (read backward), then by OLD's (read forward)."""
-    pairs, old_left, new_left = [], list(o.fields), list(n.fields)
+    """Fields by name, then by NEW's aliases (read backward), then by OLD's (read forward).
 
-    def take(test):
-        for nf in list(new_left):
-            of = next((f for f in old_left if test(f, nf)), None)
-            if of is not None:
-                pairs.append((of, nf))
-                old_left.remove(of)
-                new_left.remove(nf)
-
-    take(lambda of, nf: of.name == nf.name)
-    take(lambda of, nf: of.name in nf.aliases)
-    take(lambda of, nf: nf.name in of.aliases)
+    Each NEW field takes the first OLD field, in OLD's order, that is still unpaired. Names
+    are looked up in a dict: scanning lists made a 10,000-field record quadratic.
+    """
+    pairs = []
+    left = {f.name: f for f in o.fields}  # unpaired OLD fields, in OLD's order
+    new_left = []
+    for nf in n.fields:
+        of = left.pop(nf.name, None)
+        if of is None:
+            new_left.append(nf)
+        else:
+            pairs.append((of, nf))
+    rest = []
+    for nf in new_left:
+        candidates = [left[a] for a in nf.aliases if a in left]
+        if candidates:
+            of = min(candidates, key=lambda f: f.position)
+            del left[of.name]
+            pairs.append((of, nf))
+        else:
+            rest.append(nf)
+    new_left = []
+    for nf in rest:
+        of = next((f for f in left.values() if nf.name in f.aliases), None)
+        if of is None:
+            new_left.append(nf)
+        else:
+            del left[of.name]
+            pairs.append((of, nf))
     pairs.sort(key=lambda p: p[0].position)
-    return pairs, old_left, new_left
+    return pairs, list(left.values()), new_left
 
 
 def _json(value) -> str:

@@ -86,7 +86,15 @@ class Node:
         return self.kind in ("record", "enum", "fixed")
 
     def field(self, name: str) -> Field | None:
-        return next((f for f in self.fields if f.name == name), None)
+        # By name through an index: a linear scan per lookup made records of thousands of
+        # fields quadratic (benchmarks/scale.py). Rebuilt whenever the field list has grown.
+        index = self.__dict__.get("_by_name")
+        if index is None or index[0] != len(self.fields):
+            index = (len(self.fields), {})
+            for f in self.fields:
+                index[1].setdefault(f.name, f)
+            self.__dict__["_by_name"] = index
+        return index[1].get(name)
 
     def describe(self) -> str:
         """A short text for messages: ``long``, ``array<int>``, ``record utility.leaks.Site``."""
@@ -228,14 +236,16 @@ class _Parser:
         fields = obj.get("fields")
         if not isinstance(fields, list):
             self.fail(f"record '{node.name}' needs a 'fields' list", obj)
+        seen = set()
         for position, raw in enumerate(fields):
             if not isinstance(raw, dict):
                 self.fail(f"a field of record '{node.name}' must be an object", fields)
             name = raw.get("name")
             if not isinstance(name, str) or not NAME.match(name):
                 self.fail(f"field name {name!r} of record '{node.name}' is not a valid Avro name", raw)
-            if node.field(name) is not None:
+            if name in seen:
                 self.fail(f"record '{node.name}' has two fields named '{name}'", raw)
+            seen.add(name)
             if "type" not in raw:
                 self.fail(f"field '{name}' needs a 'type'", raw)
             aliases = raw.get("aliases", [])

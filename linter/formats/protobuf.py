@@ -5,6 +5,7 @@ each side gets its own descriptor pool, since OLD and NEW define the same full n
 """
 from __future__ import annotations
 
+from collections.abc import Mapping
 from pathlib import Path
 from typing import Iterable
 
@@ -48,28 +49,43 @@ def load_many(files: Iterable[tuple[Path, str]], options: Options, root: Path | 
 def _schema(model, source: Source) -> Schema:
     from .protobuf_model import Model
 
+    virtual = source.virtual
+    # One side's types are shared by all its files; each file's view compares its own.
     own = Model(
-        files={k: v for k, v in model.files.items() if k == source.virtual},
-        messages={k: _own(m, source.virtual) for k, m in model.messages.items()},
-        enums={k: _own(e, source.virtual) for k, e in model.enums.items()},
-        services={k: s for k, s in model.services.items() if s.file == source.virtual},
+        files={k: v for k, v in model.files.items() if k == virtual},
+        messages=model.messages, enums=model.enums,
+        services={k: s for k, s in model.services.items() if s.file == virtual},
+        compared=frozenset({virtual}), shared=model.shared,
     )
-    if source.virtual not in model.files:
+    if virtual not in model.files:
         raise InputError("protoc did not report this file", source.display)
-    roots = tuple(sorted(m.full_name for m in own.messages.values()
-                         if m.own and m.parent is None and not m.map_entry))
-    paths, first = usage(own, list(roots))
-    fields = {root: frozenset(paths.get(root, ())) for root in roots}
-    return Schema(format=name, file=source.display, roots=roots, fields=fields,
+    roots = tuple(sorted(m.full_name for m in own.own_messages().values()
+                         if m.parent is None and not m.map_entry))
+    _, first = usage(own, list(roots), limit=0)
+    return Schema(format=name, file=source.display, roots=roots, fields=_Paths(own, roots),
                   model=Side(own, roots, first, source.display))
 
 
-def _own(item, virtual: str):
-    """A copy of a type marked as compared only if it lives in this file."""
-    from dataclasses import replace
+class _Paths(Mapping):
+    """Schema.fields, listed on first use: a tree of shared types can have very many paths."""
 
-    own = item.file == virtual
-    return item if item.own == own else replace(item, own=own)
+    def __init__(self, model, roots):
+        self._model, self._roots, self._paths = model, roots, None
+
+    def _load(self):
+        if self._paths is None:
+            paths, _ = usage(self._model, list(self._roots))
+            self._paths = {root: frozenset(paths.get(root, ())) for root in self._roots}
+        return self._paths
+
+    def __getitem__(self, key):
+        return self._load()[key]
+
+    def __iter__(self):
+        return iter(self._roots)
+
+    def __len__(self):
+        return len(self._roots)
 
 
 def diff(old: Schema, new: Schema):

@@ -41,7 +41,12 @@ class Source:
     @property
     def virtual(self) -> str:
         """The file's name as protoc sees it: relative to its import root."""
-        return self.path.resolve().relative_to(self.root.resolve()).as_posix()
+        return _virtual(self.path, self.root)
+
+
+@lru_cache(maxsize=4096)
+def _virtual(path: Path, root: Path) -> str:
+    return path.resolve().relative_to(root.resolve()).as_posix()
 
 
 def compile_set(sources: Sequence[Source], include: Iterable[str] = ()):

@@ -45,7 +45,7 @@ KINDS = frozenset({
     "protobuf-enum-value-renamed", "protobuf-enum-alias-added", "protobuf-enum-alias-removed",
     "protobuf-enum-became-closed", "protobuf-enum-became-open", "protobuf-enum-default-changed",
     "protobuf-message-added", "protobuf-message-removed", "protobuf-message-renamed",
-    "protobuf-message-moved-package", "protobuf-enum-added", "protobuf-enum-removed",
+    "protobuf-nested-message-removed", "protobuf-enum-added", "protobuf-enum-removed",
     "protobuf-enum-renamed", "protobuf-service-added", "protobuf-service-removed",
     "protobuf-service-renamed", "protobuf-method-added", "protobuf-method-removed",
     "protobuf-method-renamed", "protobuf-method-request-changed", "protobuf-method-response-changed",
@@ -122,10 +122,12 @@ class Differ:
             self.changes.append(Change(kind, schema, path, old, new, old_loc, new_loc,
                                        {"type": type_name, **facts}))
 
-    def annotations(self, type_name: str, leaf: str | None, old_ann, new_ann, old_loc, new_loc):
+    def annotations(self, type_name: str, leaf: str | None, old_ann, new_ann, old_loc, new_loc, **types):
+        """Unit and meaning changes; ``types`` passes a field's message annotations (a unit is inherited)."""
         for schema, prefix in self.targets(type_name):
             path = ".".join(p for p in (prefix, leaf) if p)
-            self.changes.extend(semantics.annotation_changes(schema, path, old_ann, new_ann, old_loc, new_loc))
+            self.changes.extend(semantics.annotation_changes(schema, path, old_ann, new_ann, old_loc, new_loc,
+                                                             **types))
 
     # -- the walk ---------------------------------------------------------------------------
 
@@ -141,7 +143,8 @@ class Differ:
         for a, b in pairs:
             self.message(a, b)
         for m in removed:
-            self.emit("protobuf-message-removed", m.full_name, None, m.loc, None, old=m.full_name,
+            kind = "protobuf-message-removed" if m.parent is None else "protobuf-nested-message-removed"
+            self.emit(kind, m.full_name, None, m.loc, None, old=m.full_name,
                       message=m.full_name)
         for m in added:
             self.emit("protobuf-message-added", m.full_name, None, None, m.loc, new=m.full_name,
@@ -179,15 +182,25 @@ class Differ:
     def message(self, a: Message, b: Message):
         name = a.full_name
         if a.full_name != b.full_name and not self.moved_with_package(a, b):
-            kind = "protobuf-message-moved-package" if a.package != b.package else "protobuf-message-renamed"
-            self.emit(kind, name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
+            # Within one file pair a package move is the file's package change (reported once).
+            self.emit("protobuf-message-renamed", name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
                       old_name=a.full_name, new_name=b.full_name)
         self.annotations(name, None, a.ann, b.ann, a.loc, b.loc)
         pairs = []
         left = dict(a.fields)
         right = dict(b.fields)
+        # A name kept with its type but given another number is that field renumbered (fields
+        # that swapped numbers are two renumberings, not two reuses); otherwise pair by number.
+        new_by_name = {g.name: g for g in b.fields.values()}
+        moved = [(f, new_by_name[f.name]) for f in a.fields.values()
+                 if f.name in new_by_name and new_by_name[f.name].number != f.number
+                 and scalar_change(f.type, new_by_name[f.name].type) is None
+                 and self._same_type(f, new_by_name[f.name])]
+        renumbered = {f.number for f, _ in moved}
+        taken = {g.number for _, g in moved}
         for number in sorted(a.fields.keys() & b.fields.keys()):
-            pairs.append((left.pop(number), right.pop(number)))
+            if number not in renumbered and number not in taken:
+                pairs.append((left.pop(number), right.pop(number)))
         for number, f in sorted(left.items()):
             match = [g for g in right.values() if g.name == f.name]
             if match:
@@ -267,7 +280,7 @@ class Differ:
         if f.is_map and g.is_map:
             self.map_entries(a, f, g)
         self.cardinality(name, leaf, f, g, base, types)
-        self.annotations(name, leaf, f.ann, g.ann, f.loc, g.loc)
+        self.annotations(name, leaf, f.ann, g.ann, f.loc, g.loc, old_type=a.ann, new_type=b.ann)
 
     def type_change(self, f: Field, g: Field) -> str | None:
         if f.is_map != g.is_map:

@@ -131,12 +131,25 @@ class Model:
     messages: dict[str, Message] = field(default_factory=dict)  # every message, imports too
     enums: dict[str, Enum] = field(default_factory=dict)
     services: dict[str, Service] = field(default_factory=dict)  # own files only
+    # The files whose types are compared; None: every file that is not an import.
+    compared: frozenset[str] | None = None
+    # Caches shared by the per-file views of one side (indexes, field steps).
+    shared: dict = field(default_factory=dict)
+
+    def _mine(self, item) -> bool:
+        return item.own if self.compared is None else item.file in self.compared
 
     def own_messages(self) -> dict[str, Message]:
-        return {k: m for k, m in self.messages.items() if m.own}
+        if self.compared is not None:
+            index = self.shared.setdefault("by_file", {})
+            if not index:
+                for k, m in self.messages.items():
+                    index.setdefault(m.file, {})[k] = m
+            return {k: m for f in sorted(self.compared) for k, m in index.get(f, {}).items()}
+        return {k: m for k, m in self.messages.items() if self._mine(m)}
 
     def own_enums(self) -> dict[str, Enum]:
-        return {k: e for k, e in self.enums.items() if e.own}
+        return {k: e for k, e in self.enums.items() if self._mine(e)}
 
 
 def _annotations_in(comment: str) -> dict:
@@ -281,36 +294,56 @@ def build(fds, pool, displays: dict[str, str]) -> Model:
     return model
 
 
-def usage(model: Model, roots: list[str], limit: int = 20000):
-    """For each root: every dotted field path, and the shortest path at which each type is used.
+def _targets(model: Model, f: Field):
+    """The types a field leads to: its own, and for a map the entry and the value's type."""
+    if not f.is_map:
+        return [f.type_name] if f.type_name else [], f.type_name
+    entry = model.messages.get(f.type_name)
+    value = entry.fields.get(2) if entry else None
+    inner = value.type_name if value else None
+    return [t for t in (f.type_name, inner) if t], inner
 
-    Maps are transparent (a map of messages continues into the value's fields); recursion
-    stops where a type is already on the way down.
+
+def usage(model: Model, roots: list[str], limit: int = 2000):
+    """For each root: its dotted field paths, and the shortest path at which each type is used.
+
+    Maps are transparent (a map of messages continues into the value's fields). Types are
+    visited once per root for the shortest paths; the list of all paths stops at recursion
+    and at ``limit`` paths per root (a tree of shared types can have exponentially many).
     """
     paths: dict[str, set[str]] = {}
     first: dict[str, dict[str, str]] = {}   # type full name -> root -> prefix
-    for root in roots:
-        found: set[str] = set()
-        first.setdefault(root, {})[root] = ""
-        queue = [(root, "", (root,))]
-        while queue and len(found) < limit:
-            type_name, prefix, stack = queue.pop(0)
+    steps = model.shared.setdefault("steps", {})
+
+    def fields_of(type_name: str) -> list:
+        """(field name, types reached, type descended into) per field, in number order; cached."""
+        if type_name not in steps:
             message = model.messages.get(type_name)
-            if message is None:
-                continue
-            for f in sorted(message.fields.values(), key=lambda f: f.number):
-                path = f"{prefix}.{f.name}" if prefix else f.name
-                found.add(path)
-                target = f.type_name
-                if f.is_map:
-                    entry = model.messages.get(target)
+            steps[type_name] = [(f.name, *_targets(model, f))
+                                for f in sorted(message.fields.values(), key=lambda f: f.number)] if message else []
+        return steps[type_name]
+
+    for root in roots:
+        first.setdefault(root, {})[root] = ""
+        seen = {root}
+        queue = [(root, "")]
+        while queue:
+            type_name, prefix = queue.pop(0)
+            for name, reached, inner in fields_of(type_name):
+                path = f"{prefix}.{name}" if prefix else name
+                for target in reached:
                     first.setdefault(target, {}).setdefault(root, path)
-                    value = entry.fields.get(2) if entry else None
-                    target = value.type_name if value else None
-                if target is None:
-                    continue
-                first.setdefault(target, {}).setdefault(root, path)
-                if target in model.messages and target not in stack:
-                    queue.append((target, path, stack + (target,)))
+                if inner and inner not in seen and inner in model.messages:
+                    seen.add(inner)
+                    queue.append((inner, path))
+        found: set[str] = set()
+        stack = [(root, "", (root,))]
+        while stack and len(found) < limit:
+            type_name, prefix, way = stack.pop()
+            for name, _, inner in fields_of(type_name):
+                path = f"{prefix}.{name}" if prefix else name
+                found.add(path)
+                if inner and inner in model.messages and inner not in way:
+                    stack.append((inner, path, way + (inner,)))
         paths[root] = found
     return paths, first

@@ -185,6 +185,17 @@ def open_pair(comparison: Comparison, options=None):
     return module.open_pair(old, new, comparison.old, comparison.new, options)
 
 
+def _guarded(finding: Finding, comparison: Comparison, pair) -> Witness | None:
+    """The witness, or an unconfirmed one naming the error: a witness never ends the run."""
+    try:
+        return witness_for(finding, comparison.format, pair)
+    except Exception as exc:  # noqa: BLE001 - reported in the witness, visible to the suite
+        return Witness(finding.compatibility.breaks()[0] if finding.compatibility.breaks() else "backward",
+                       None, comparison.old, comparison.new,
+                       f"no witness: building it failed ({type(exc).__name__}: {exc}); please report this",
+                       False)
+
+
 def attach(comparisons: Iterable[Comparison], options=None) -> list[Comparison]:
     """The comparisons again, each finding that breaks a direction carrying its witness."""
     out = []
@@ -196,7 +207,7 @@ def attach(comparisons: Iterable[Comparison], options=None) -> list[Comparison]:
         pair = open_pair(comparison, options)
         findings = []
         for finding in comparison.findings:
-            witness = witness_for(finding, comparison.format, pair) if finding in wanted else None
+            witness = _guarded(finding, comparison, pair) if finding in wanted else None
             if witness is not None:
                 finding = dataclasses.replace(finding, extra={**finding.extra, "witness": witness.to_json()})
             findings.append(finding)

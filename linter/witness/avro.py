@@ -244,11 +244,24 @@ def _logical_value(node: dict, rng) -> Any:
     return NOTHING
 
 
-def _primitive(kind: str, node: Any, rng) -> Any:
+TAME = {"int": (0, 100), "long": (0, 100_000)}
+TAME_WORDS = ("m-17", "north", "d-4", "ok", "")
+
+
+def _primitive(kind: str, node: Any, rng, tame: bool = False) -> Any:
     if isinstance(node, dict) and node.get("logicalType"):
         value = _logical_value(node, rng)
         if value is not NOTHING:
             return value
+    if tame:  # readable values for a witness: the pressed value carries the point
+        if kind in TAME:
+            return rng.randint(*TAME[kind])
+        if kind in ("float", "double"):
+            return float(rng.randint(0, 40)) / 4
+        if kind == "string":
+            return rng.choice(TAME_WORDS)
+        if kind == "bytes":
+            return rng.choice(TAME_WORDS).encode()
     if kind == "null":
         return None
     if kind == "boolean":
@@ -289,7 +302,8 @@ def _branch_order(side: Side, union: list, focus, rng, depth: int) -> list:
     return [rng.choice(branches)]
 
 
-def generate(side: Side, node: Any, rng, focus: list[str] | None = None, press=None, depth: int = 0) -> Any:
+def generate(side: Side, node: Any, rng, focus: list[str] | None = None, press=None, depth: int = 0,
+             tame: bool = False) -> Any:
     """A random datum of ``node``; along ``focus`` (remaining path segments), ``press`` picks the target."""
     node = side.resolve(node)
     at_target = focus is not None and not focus
@@ -298,30 +312,30 @@ def generate(side: Side, node: Any, rng, focus: list[str] | None = None, press=N
         if pressed is not NOTHING:
             kind, value = pressed
             if kind == "branch":
-                return _tag(value, generate(side, value, rng, None, None, depth + 1), node, side)
+                return _tag(value, generate(side, value, rng, None, None, depth + 1, tame), node, side)
             return value
     if isinstance(node, list):
         branch = _branch_order(side, node, focus, rng, depth)[0]
-        return _tag(branch, generate(side, branch, rng, focus, press, depth + 1), node, side)
+        return _tag(branch, generate(side, branch, rng, focus, press, depth + 1, tame), node, side)
     kind = kind_of(node)
     if kind in ("record", "error"):
         out = {}
         for f in node["fields"]:
             sub = focus[1:] if focus and focus[0] == f["name"] else None
-            out[f["name"]] = generate(side, f["type"], rng, sub, press, depth + 1)
+            out[f["name"]] = generate(side, f["type"], rng, sub, press, depth + 1, tame)
         return out
     if kind == "array":
         n = rng.randint(1, 2) if focus is not None else rng.randint(0, 3 if depth < MAX_DEPTH else 0)
-        return [generate(side, node["items"], rng, focus, press, depth + 1) for _ in range(n)]
+        return [generate(side, node["items"], rng, focus, press, depth + 1, tame) for _ in range(n)]
     if kind == "map":
         n = rng.randint(1, 2) if focus is not None else rng.randint(0, 2 if depth < MAX_DEPTH else 0)
         keys = {f"k{rng.randint(0, 999)}" for _ in range(n)}
-        return {k: generate(side, node["values"], rng, focus, press, depth + 1) for k in sorted(keys)}
+        return {k: generate(side, node["values"], rng, focus, press, depth + 1, tame) for k in sorted(keys)}
     if kind == "enum":
         return rng.choice(node["symbols"])
     if kind == "fixed":
         return rng.randbytes(node["size"])
-    return _primitive(kind, node, rng)
+    return _primitive(kind, node, rng, tame)
 
 
 def _press(wside: Side, rside: Side, rnode: Any, rng):
@@ -363,8 +377,8 @@ def targeted(finding, writer: Side, reader: Side, rng):
     focus = finding.path.split(".") if finding.path else []
     rnode = node_at(reader, rroot[0], finding.path) if rroot is not None else None
     press = _press(writer, reader, rnode, rng)
-    for _ in range(TARGETED):
-        yield generate(writer, wroot[0], rng, list(focus), press)
+    for i in range(TARGETED):
+        yield generate(writer, wroot[0], rng, list(focus), press, tame=i < TARGETED // 2)
 
 
 def random_datum(writer: Side, root: str, rng) -> Any:
@@ -574,8 +588,9 @@ def _at(value: Any, path: str) -> Any:
     return value
 
 
-def _one_line(exc: Exception) -> str:
-    return " ".join(str(exc).split()) or type(exc).__name__
+def _one_line(exc: Exception, limit: int = 240) -> str:
+    text = " ".join(str(exc).split()) or type(exc).__name__
+    return text if len(text) <= limit else text[: limit - 3] + "..."
 
 
 def with_value(writer: Side, root: str, path: str, value: float, rng) -> Any:
@@ -583,6 +598,7 @@ def with_value(writer: Side, root: str, path: str, value: float, rng) -> Any:
     wroot = writer.root(root)
     if wroot is None or node_at(writer, wroot[0], path) is None:
         return None
+    path = _numeric_leaf(writer, wroot[0], path)
 
     def press(node):
         branches = node if isinstance(node, list) else [node]
@@ -594,8 +610,7 @@ def with_value(writer: Side, root: str, path: str, value: float, rng) -> Any:
                 return ("value", float(value))
         return NOTHING
 
-    datum = generate(writer, wroot[0], rng, path.split(".") if path else [], press)
-    return datum
+    return generate(writer, wroot[0], rng, path.split(".") if path else [], press, tame=True)
 
 
 # --- isolating one change --------------------------------------------------------------
@@ -730,3 +745,22 @@ def isolate(finding, writer: Side, reader: Side) -> Side | None:
     except Exception:  # noqa: BLE001 - a hybrid fastavro will not take: no isolation
         return None
     return Side(reader.display, hybrid, parsed, plain, names)
+
+
+def _numeric_leaf(side: Side, root: Any, path: str) -> str:
+    """``path`` itself, or for a record (a unit on a type applies to its numbers) its first number field."""
+    node = node_at(side, root, path)
+    for b in node if isinstance(node, list) else [node]:
+        b = side.resolve(b)
+        if kind_of(b) in ("int", "long", "float", "double"):
+            return path
+    for b in node if isinstance(node, list) else [node]:
+        b = side.resolve(b)
+        if kind_of(b) in ("record", "error"):
+            for f in b["fields"]:
+                sub = f"{path}.{f['name']}" if path else f["name"]
+                leaf = node_at(side, root, sub)
+                if any(kind_of(side.resolve(x)) in ("int", "long", "float", "double")
+                       for x in (leaf if isinstance(leaf, list) else [leaf])):
+                    return sub
+    return path

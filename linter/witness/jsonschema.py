@@ -462,6 +462,7 @@ def targeted(finding, writer: Side, reader: Side, rng):
             yield _complete(writer.data, _put(base, segs, copy.deepcopy(value)))
             if segs:
                 yield _complete(writer.data, _put(base, segs, [copy.deepcopy(value)]))  # arrays are transparent
+                yield _complete(writer.data, _put(base, segs, [copy.deepcopy(value)] * 2))  # uniqueItems
     # Instances aimed at the reader schema often sit just outside it on the writer's side.
     for _ in range(GENERATED):
         value = generate(reader, reader.data, rng)
@@ -469,7 +470,35 @@ def targeted(finding, writer: Side, reader: Side, rng):
             yield value
 
 
+def _numeric_leaf(side: Side, path: str) -> str:
+    """``path``, or for an object (a unit on a type applies to its numbers) its first number property."""
+    node = side.data
+    for seg in path.split(".") if path else ():
+        node = _deref(side, node)
+        while isinstance(node, dict) and "items" in node and "properties" not in node:
+            node = _deref(side, node["items"])
+        node = (node.get("properties") or {}).get(seg) if isinstance(node, dict) else None
+    node = _deref(side, node)
+    if not isinstance(node, dict) or node.get("type") in ("number", "integer"):
+        return path
+    for name, sub in (node.get("properties") or {}).items():
+        sub = _deref(side, sub)
+        if isinstance(sub, dict) and sub.get("type") in ("number", "integer"):
+            return f"{path}.{name}" if path else name
+    return path
+
+
+def _deref(side: Side, node: Any) -> Any:
+    for _ in range(8):
+        if isinstance(node, dict) and "$ref" in node:
+            node = side.resolve(node["$ref"])
+        else:
+            break
+    return node
+
+
 def with_value(writer: Side, root: str, path: str, value: Any, rng) -> Any:
+    path = _numeric_leaf(writer, path)
     segs = path.split(".") if path else []
     for _ in range(BASES * 4):
         base = random_datum(writer, root, rng)

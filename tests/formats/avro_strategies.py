@@ -26,13 +26,24 @@ def scalar():
     return st.sampled_from(SCALARS)
 
 
+# Logical types on their physical types (Avro specification 1.12.0, Logical Types).
+LOGICAL = [{"type": "long", "logicalType": "timestamp-millis"}, {"type": "long", "logicalType": "timestamp-micros"},
+           {"type": "long", "logicalType": "local-timestamp-millis"}, {"type": "int", "logicalType": "date"},
+           {"type": "bytes", "logicalType": "decimal", "precision": 10, "scale": 2},
+           {"type": "bytes", "logicalType": "decimal", "precision": 10, "scale": 3},
+           {"type": "bytes", "logicalType": "decimal", "precision": 12, "scale": 2},
+           {"type": "string", "logicalType": "uuid"}]
+
+
 @st.composite
-def field_type(draw, owner: str, depth: int = 0):
+def field_type(draw, owner: str, depth: int = 0, logical: bool = False):
     """A field type; named types are named after the field so OLD and NEW share them."""
     shape = draw(st.sampled_from(["scalar"] * 4 + ["enum", "fixed", "array", "map", "union", "optional"]
-                                 + (["record"] if depth == 0 else [])))
+                                 + (["record"] if depth == 0 else []) + (["logical"] * 2 if logical else [])))
     if shape == "scalar":
         return draw(scalar())
+    if shape == "logical":
+        return dict(draw(st.sampled_from(LOGICAL)))
     if shape == "enum":
         symbols = draw(st.lists(st.sampled_from(SYMBOLS), min_size=1, max_size=4, unique=True))
         out = {"type": "enum", "name": f"E_{owner}", "symbols": symbols}
@@ -56,6 +67,8 @@ def field_type(draw, owner: str, depth: int = 0):
 
 def default_for(type_, draw):
     """A valid default for a type, or None when this sketch has none to offer."""
+    if isinstance(type_, dict) and "logicalType" in type_:
+        type_ = type_["type"]
     if isinstance(type_, str):
         return draw(st.sampled_from(DEFAULTS[type_]))
     if isinstance(type_, list):
@@ -74,8 +87,8 @@ def default_for(type_, draw):
 
 
 @st.composite
-def field(draw, name: str, type_=None):
-    type_ = type_ if type_ is not None else draw(field_type(name))
+def field(draw, name: str, type_=None, logical: bool = False):
+    type_ = type_ if type_ is not None else draw(field_type(name, logical=logical))
     out = {"name": name, "type": type_}
     if draw(st.booleans()):
         out["default"] = default_for(type_, draw)
@@ -83,16 +96,19 @@ def field(draw, name: str, type_=None):
 
 
 @st.composite
-def record(draw, names):
+def record(draw, names, logical=False):
     return {"type": "record", "name": "Reading", "namespace": NAMESPACE,
-            "fields": [draw(field(n)) for n in names]}
+            "fields": [draw(field(n, logical=logical)) for n in names]}
 
 
 @st.composite
-def evolution(draw):
-    """(OLD, NEW): NEW keeps, drops, adds, retypes and renames OLD's fields."""
+def evolution(draw, logical: bool = False):
+    """(OLD, NEW): NEW keeps, drops, adds, retypes and renames OLD's fields.
+
+    ``logical`` adds logical types, which fastavro converts on reading (so the codec
+    checks leave them out)."""
     old_names = draw(st.lists(st.sampled_from(FIELDS), min_size=1, max_size=4, unique=True))
-    old = draw(record(old_names))
+    old = draw(record(old_names, logical))
     new_fields = []
     for f in old["fields"]:
         action = draw(st.sampled_from(["keep"] * 2 + ["tweak"] * 3 + ["retype", "redefault", "drop", "rename"]))
@@ -106,7 +122,7 @@ def evolution(draw):
                 del g["default"]
             new_fields.append(g)
         elif action == "retype":
-            new_fields.append(draw(field(f["name"])))
+            new_fields.append(draw(field(f["name"], logical=logical)))
         elif action == "redefault":
             g = {k: v for k, v in f.items() if k != "default"}
             if draw(st.booleans()):
@@ -119,7 +135,7 @@ def evolution(draw):
             new_fields.append(g)
     for n in draw(st.lists(st.sampled_from([n for n in FIELDS if n not in old_names] or ["f9"]),
                            max_size=2, unique=True)):
-        new_fields.append(draw(field(n)))
+        new_fields.append(draw(field(n, logical=logical)))
     new_fields = draw(st.permutations(new_fields))
     return old, dict(old, fields=list(new_fields))
 
@@ -141,6 +157,9 @@ def tweak(draw, type_):
         out = draw(st.sampled_from(options))
         out = [b for i, b in enumerate(out) if b not in out[:i]]
         return out[0] if len(out) == 1 else out
+    if "logicalType" in type_:
+        out = draw(st.sampled_from([t for t in LOGICAL if t["type"] == type_["type"]] + [type_["type"]]))
+        return dict(out) if isinstance(out, dict) else out
     kind = type_["type"]
     if kind in ("enum", "fixed", "record") and draw(st.integers(0, 4)) == 0:
         # Renamed, with an alias for the old name (full or relative), or without one.

@@ -173,3 +173,15 @@ def test_every_avro_rule_has_a_case_folder():
         covered |= set(json.loads(expected.read_text())["rules"])
     rules = {r.id for r in catalogue.load() if r.format == "avro" and r.status != "removed"}
     assert sorted(rules - covered) == []
+
+
+@pytest.mark.parametrize("depth", [600, 3000])
+def test_deeply_nested_schema_is_bad_input_not_a_crash(tmp_path, depth):
+    # 600 levels pass the JSON decoder and fail deeper down; 3000 fail in the decoder.
+    path = tmp_path / "deep.avsc"
+    path.write_text('{"type": "array", "items": ' * depth + '"long"' + "}" * depth)
+    result = cli(["check", str(path), str(path)])
+    assert result.exit_code in (0, 2), result.output
+    assert "Traceback" not in result.output and "internal error" not in result.output
+    if result.exit_code == 2:
+        assert "nested too deeply" in result.output or "recursion" in result.output, result.output

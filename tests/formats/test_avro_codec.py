@@ -90,7 +90,7 @@ def tmp(tmp_path_factory):
 
 
 @MORE
-@given(evolution())
+@given(evolution(logical=True))
 def test_findings_agree_with_the_spec_resolver(tmp, pair):
     old_json, new_json = pair
     old, new = load(tmp, "old.avsc", old_json), load(tmp, "new.avsc", new_json)

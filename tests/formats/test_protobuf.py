@@ -9,6 +9,7 @@ from pathlib import Path
 import pytest
 
 import linter
+import linter.catalogue  # used as linter.catalogue below; not imported by linter itself
 from linter.errors import InputError
 from linter.formats import Options, protobuf
 from linter.formats.protobuf_compile import well_known_dir
@@ -241,3 +242,31 @@ def test_well_known_types_survive_mutations(tmp_path, name, mutation):
         verdict = "backward"
     assert rules == {rule}, [f.message for f in report.findings]
     assert report.compatibility.value == verdict
+
+
+def test_importing_the_adapter_does_not_import_protobuf():
+    # Start-up time is measured: protobuf and grpc_tools load only when a .proto is compiled.
+    code = "import sys, linter.formats.protobuf; print(sorted(m for m in sys.modules if m.startswith(('google', 'grpc'))))"
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "[]"
+
+
+def test_message_option_unit_applies_to_fields_without_their_own(tmp_path):
+    old = write(tmp_path, "old.proto", HEADER + 'import "evolint/annotations.proto";\n'
+                'message PumpPressures {\n  option (evolint.message_unit) = "kPa";\n'
+                '  float inlet = 1;\n  float outlet = 2 [(evolint.unit) = "kPa"];\n}\n')
+    new = write(tmp_path, "new.proto", HEADER + 'import "evolint/annotations.proto";\n'
+                'message PumpPressures {\n  option (evolint.message_unit) = "Pa";\n'
+                '  float inlet = 1;\n  float outlet = 2 [(evolint.unit) = "kPa"];\n}\n')
+    report = linter.check(old, new)
+    assert [(f.rule, f.path, f.facts["old_unit"], f.facts["new_unit"]) for f in report.findings] == [
+        ("S003", "", "kPa", "Pa")]
+
+
+def test_shipped_annotation_options_use_the_in_house_extension_range():
+    # Language guide (proto2), Extensions / Custom Options: 50000-99999 is for in-house use.
+    from linter.formats.protobuf_model import OPTION_KEYS
+
+    text = (Path(linter.__file__).parent / "data" / "evolint" / "annotations.proto").read_text()
+    numbers = {int(n) for n in re.findall(r"=\s*(\d+);", text)}
+    assert numbers == set(OPTION_KEYS) and all(50000 <= n <= 99999 for n in numbers)

@@ -110,3 +110,26 @@ def test_verify_reports_a_wrong_static_verdict_as_a_bug(files, capsys, monkeypat
     code, out, _ = run(["verify", old, new, "--samples", "10"], capsys)
     assert code == 1
     assert "bug" in out and "datum:" in out and "long is not int" in out
+
+
+def test_verify_says_when_only_meaning_breaks(files, capsys, verify_validator):
+    old = record("long", ["OK"])
+    new = record("long", ["OK"])
+    old["fields"][1]["unit"], new["fields"][1]["unit"] = "L", "m3"
+    a, b = files(old, new)
+    code, out, _ = run(["verify", a, b, "--samples", "20", "--output", "json"], capsys)
+    data = json.loads(out)
+    assert not list(verify_validator.iter_errors(data)) and code == 0
+    assert all(r["verdict"] == "not-shown" and r.get("semantic_only") for r in data["results"])
+
+
+def test_announce_witness_adds_an_example(files, capsys, tmp_path):
+    old, new = files(record("long", ["OK", "LEAK", "OFF"]), record("long", ["OK", "LEAK"]))
+    registry = tmp_path / "consumers.yaml"
+    registry.write_text("consumers:\n  - name: leak-detection\n    contact: leaks@example.org\n"
+                        "    reads:\n      - schema: utility.metering.MeterReading\n        fields: [state]\n")
+    code, out, _ = run(["announce", old, new, "--consumers", str(registry), "--witness"], capsys)
+    assert code == 1
+    assert "Example (backward)" in out and "OFF" in out
+    _, plain, _ = run(["announce", old, new, "--consumers", str(registry)], capsys)
+    assert "Example (" not in plain

@@ -91,3 +91,21 @@ def test_static_verdict_witness_and_sampling_agree(tmp_path_factory, evolution):
             assert w and w["confirmed"], (f.rule, f.path, w, old, new)
     sampled = verify(folder / "old.avsc", folder / "new.avsc", samples=60, seed=0)
     assert not sampled.bugs, [r.to_json() for r in sampled.bugs]
+
+
+# The Avro adapter's own evolution strategy (tests/formats/avro_strategies.py), richer than
+# the one above: renames with aliases, fixed, maps, unions, nested records, defaults.
+import sys  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "formats"))
+try:
+    from avro_strategies import evolution as adapter_evolutions
+except ImportError:  # the adapter's strategies are not there: nothing to reuse
+    adapter_evolutions = None
+
+
+@pytest.mark.skipif(adapter_evolutions is None, reason="tests/formats/avro_strategies.py not present")
+@given(adapter_evolutions() if adapter_evolutions is not None else st.nothing())
+def test_adapter_evolutions_agree(tmp_path_factory, evolution):
+    test_static_verdict_witness_and_sampling_agree.hypothesis.inner_test(tmp_path_factory, evolution)

@@ -47,3 +47,18 @@ def test_verify_and_witness_options_exist():
     assert "--witness" in runner.invoke(cli, ["check", "--help"]).output
     help_text = runner.invoke(cli, ["verify", "--help"]).output
     assert "--samples" in help_text and "--seed" in help_text
+
+
+def test_a_failing_builder_does_not_end_the_run(monkeypatch, validate_report):
+    import linter.witness as w
+
+    def broken(*args, **kwargs):
+        raise RuntimeError("boom")
+
+    monkeypatch.setattr(w, "witness_for", broken)
+    f = Finding("A999", "k", "utility.metering.MeterReading", "state", Compat.FORWARD, False, "error",
+                "m", "a", "r")
+    [comparison] = w.attach([Comparison("v1/a.avsc", "v2/a.avsc", "avro", (f,))])
+    witness = comparison.findings[0].extra["witness"]
+    assert witness["confirmed"] is False and "boom" in witness["outcome"]
+    validate_report(Report("backward", [comparison]).to_json())
