@@ -5,6 +5,7 @@ each side gets its own descriptor pool, since OLD and NEW define the same full n
 """
 from __future__ import annotations
 
+import re
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Iterable
@@ -26,13 +27,15 @@ def load(path: Path, display: str, options: Options) -> Schema:
 
 def load_many(files: Iterable[tuple[Path, str]], options: Options, root: Path | None = None) -> dict[str, Schema]:
     """Compile the files of one side together; ``root`` is their common import root (a directory pair)."""
-    sources = []
+    sources, texts = [], []
     for path, display in files:
-        read_text(path, display)  # the shared checks: exists, size, UTF-8
+        texts.append(read_text(path, display))  # the shared checks: exists, size, UTF-8
         base = Path(root) if root is not None else path.parent
         sources.append(Source(path, display, base))
     if not sources:
         return {}
+    if root is not None:
+        sources = _rooted_as_imported(sources, texts)
     extra = list(options.include)
     if root is not None:  # a file may also import its neighbours by bare name
         extra += sorted({str(s.path.parent) for s in sources} - {str(root)})
@@ -43,6 +46,29 @@ def load_many(files: Iterable[tuple[Path, str]], options: Options, root: Path | 
     out = {}
     for source in sources:
         out[source.display] = _schema(model, source)
+    return out
+
+
+_IMPORT = re.compile(r'^\s*import\s+(?:public\s+|weak\s+)?"([^"]+)"\s*;', re.M)
+
+
+def _rooted_as_imported(sources: list[Source], texts: list[str]) -> list[Source]:
+    """Give each file the import root under which its neighbours import it.
+
+    protoc names a file by its path under an import root, and a file reached under two
+    names is defined twice. In a folder pair, a file importing a neighbour by bare name
+    (``import "common.proto"``) reaches it under its own folder, while the folder root
+    would name it ``proto/common.proto``: take the name the imports use.
+    """
+    imported = {name for text in texts for name in _IMPORT.findall(text)}
+    out = []
+    for source in sources:
+        rel = source.virtual
+        names = [n for n in imported if rel == n or rel.endswith("/" + n)]
+        if names:
+            name = max(names, key=len)  # the least stripped: the root's own name wins
+            source = Source(source.path, source.display, source.root / rel[: len(rel) - len(name)])
+        out.append(source)
     return out
 
 

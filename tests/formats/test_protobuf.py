@@ -270,3 +270,20 @@ def test_shipped_annotation_options_use_the_in_house_extension_range():
     text = (Path(linter.__file__).parent / "data" / "evolint" / "annotations.proto").read_text()
     numbers = {int(n) for n in re.findall(r"=\s*(\d+);", text)}
     assert numbers == set(OPTION_KEYS) and all(50000 <= n <= 99999 for n in numbers)
+
+
+def test_folder_pair_with_imports_by_bare_name(tmp_path):
+    # Two files of one folder, one importing the other by bare name, both changed: protoc must
+    # see the imported file under one name only (found when running against git folders).
+    import linter
+
+    for side, extra in (("v1", ""), ("v2", " string zone = 2;")):
+        folder = tmp_path / side / "proto"
+        folder.mkdir(parents=True)
+        (folder / "common.proto").write_text(
+            f'syntax = "proto3";\npackage utility.common;\nmessage Site {{ string id = 1;{extra} }}\n')
+        (folder / "pump_status.proto").write_text(
+            'syntax = "proto3";\npackage utility.telemetry;\nimport "common.proto";\n'
+            "message PumpStatus { utility.common.Site site = 1; int32 rpm = 2; }\n")
+    report = linter.check(tmp_path / "v1", tmp_path / "v2")
+    assert [(f.rule, f.schema, f.path) for f in report.findings] == [("P001", "utility.common.Site", "zone")]
