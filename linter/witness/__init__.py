@@ -123,8 +123,9 @@ def search(module, finding: Finding, writer, reader, direction: str, encoding: s
     # this change's failures from those of other changes in the same file.
     alone = module.isolate(finding, writer, reader) if hasattr(module, "isolate") else None
     first = None
+    focus = {"focus": finding.path} if getattr(module, "FOCUSED", False) else {}
     for datum in itertools.chain(targeted, fallback):
-        trial = module.run(writer, reader, finding.schema, datum, encoding)
+        trial = module.run(writer, reader, finding.schema, datum, encoding, **focus)
         if trial is None:
             continue  # the writer refused the datum: not writer data after all
         first = first or trial
