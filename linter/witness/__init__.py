@@ -35,6 +35,18 @@ DIRECTIONS = ("backward", "forward")
 FALLBACK_SAMPLES = 150
 
 
+@dataclass
+class Pair:
+    """The two sides of a comparison as a format's witness module opened them."""
+
+    old: Any
+    new: Any
+
+    def sides(self, direction: str) -> tuple[Any, Any]:
+        """(writer, reader): backward reads OLD data with NEW, forward the reverse."""
+        return (self.old, self.new) if direction == "backward" else (self.new, self.old)
+
+
 @dataclass(frozen=True)
 class Trial:
     """One datum written with the writer side and read with the reader side."""

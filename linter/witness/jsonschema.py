@@ -21,7 +21,7 @@ from typing import Any
 from urllib.parse import unquote, urlsplit
 
 from ..formats import parse_json, read_text
-from . import Trial
+from . import Pair, Trial
 
 DRAFTS = {
     "json-schema.org/draft-04/schema": "Draft4Validator",
@@ -68,15 +68,6 @@ class Side:
             return self.validator._resolver.lookup(ref).contents
         except Exception:  # noqa: BLE001 - private API or an unresolvable reference
             return True
-
-
-@dataclass
-class Pair:
-    old: Side
-    new: Side
-
-    def sides(self, direction: str) -> tuple[Side, Side]:
-        return (self.old, self.new) if direction == "backward" else (self.new, self.old)
 
 
 def _retriever(folder: Path):
