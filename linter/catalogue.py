@@ -11,7 +11,6 @@ import string
 import tomllib
 from dataclasses import dataclass, field
 from functools import lru_cache
-from importlib import resources
 from pathlib import Path
 from typing import Any, Mapping
 
@@ -167,9 +166,11 @@ class Catalogue:
 
 def rules_dir() -> Path:
     """Where the rule files are: inside the installed wheel, or the source tree."""
-    packaged = resources.files("linter") / "rules"
+    # A plain path, not importlib.resources: its readers import zipfile, a measurable share
+    # of start-up (benchmarks/startup.py), and the files are read from disk either way.
+    packaged = Path(__file__).resolve().parent / "rules"
     if packaged.is_dir():
-        return Path(str(packaged))
+        return packaged
     return Path(__file__).resolve().parent.parent / "rules"
 
 

@@ -60,6 +60,8 @@ class Config:
     by_path: tuple[tuple[str, str], ...] = ()          # (glob, mode), last match wins
     severities: Mapping[str, str] = field(default_factory=dict)
     waivers: tuple[Waiver, ...] = ()
+    undecided: str = "breaking"     # how findings the analysis could not decide count
+    json_format: str = "default"    # JSON Schema `format`: the draft's default, annotation or assertion
     _cache: dict = field(default_factory=dict, compare=False, repr=False)  # policies by file
 
     @property
@@ -111,7 +113,12 @@ class Config:
         )
         return Policy(mode=mode or self._mode_for_rel(rel, "backward"),
                       encodings=tuple(encodings if encodings is not None else self.encodings),
-                      severities=dict(self.severities), silences=silences)
+                      severities=dict(self.severities), silences=silences, undecided=self.undecided)
+
+    @property
+    def settings(self) -> dict:
+        """Format-specific settings for the adapters (``Options.settings``)."""
+        return {"format": self.json_format} if self.json_format != "default" else {}
 
     def expired_changes(self, today: _dt.date | None = None) -> list[Change]:
         """One change per expired waiver, located at its entry in the file."""
@@ -318,6 +325,8 @@ def load(path: str | Path) -> Config:
         by_path=tuple((e["files"], e["mode"]) for e in data.get("by-path", ())),
         severities={(cat.get(k).id): v for k, v in data.get("severity", {}).items()},
         waivers=tuple(waivers),
+        undecided=data.get("undecided", "breaking"),
+        json_format=data.get("json-format", "default"),
     )
 
 

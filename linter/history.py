@@ -121,7 +121,8 @@ def _compare(old: Version, new: Version, mode: str | None, config: Config, forma
         return config.policy(where or pair.new or pair.old, mode=mode)
 
     comparisons = api.compare(pairs, policy, format=format,
-                              options=api.Options(include=tuple(include) + config.include))
+                              options=api.Options(include=tuple(include) + config.include,
+                                                          settings=config.settings))
     return api.Report(mode=mode or config.mode or "backward", comparisons=comparisons)
 
 

@@ -128,8 +128,9 @@ def check(ref: str = "HEAD", paths: Iterable[str] = (), *, staged: bool = False,
             pairs.append(pair)
             where[pair] = top / (c.new or c.old)
 
-        options = Options(include=_move_include(include, top, new_root) if staged else include)
-        old_options = Options(include=_move_include(include, top, old_root))
+        options = Options(include=_move_include(include, top, new_root) if staged else include,
+                          settings=config.settings)
+        old_options = Options(include=_move_include(include, top, old_root), settings=config.settings)
         comparisons = compare(
             pairs, lambda pair: config.policy(where[pair], mode=mode, encodings=encodings),
             format=format, options=options, old_options=old_options, jobs=jobs)

@@ -45,7 +45,8 @@ def run_check(paths: Iterable[str], *, mode: str | None = None, format: str | No
     report = api.check(
         old, new, mode=mode or config.mode or "backward", format=format,
         policy=lambda pair: config.policy(pair.new or pair.old, mode=mode, encodings=encodings),
-        options=api.Options(include=tuple(include) + config.include), consumers=consumers,
+        options=api.Options(include=tuple(include) + config.include, settings=config.settings),
+        consumers=consumers,
         witness=witness)
     counted = encodings if encodings is not None else config.encodings
     if counted:  # the policy is per file, so name the encodings counted here

@@ -173,3 +173,31 @@ def test_encodings_consumers_and_include_reach_the_run(tmp_path):
     assert loaded.policy(tmp_path / "a.proto", encodings=()).encodings == ()  # the command line wins
     assert loaded.consumers == tmp_path / "registry" / "consumers.yaml"
     assert loaded.include == (str(tmp_path / "proto"),)
+
+
+def test_undecided_and_json_format_settings_reach_the_run(tmp_path, monkeypatch, capsys):
+    import shutil
+    from pathlib import Path
+
+    cases = Path(__file__).parent / "cases" / "jsonschema"
+    monkeypatch.chdir(tmp_path)
+    for case, key, value, before, after in (
+        # JSON Schema Validation 2020-12 §6.3.3: two patterns are undecided, breaking by default
+        ("pattern-changed", "undecided", "compatible", "breaking", "full"),
+        # JSON Schema Validation 2020-12 §7.2: format is an annotation unless asserted
+        ("format-added-annotation", "json-format", "assertion", "full", "forward"),
+    ):
+        for side in ("old", "new"):
+            shutil.copy(cases / case / f"{side}.json", tmp_path / f"{side}.json")
+        (tmp_path / "evolint.toml").write_text("")
+        _, out, _ = run(["check", "old.json", "new.json", "--mode", "none", "--output", "json"], capsys)
+        assert json.loads(out)["compatibility"] == before
+        (tmp_path / "evolint.toml").write_text(f'{key} = "{value}"\n')
+        _, out, _ = run(["check", "old.json", "new.json", "--mode", "none", "--output", "json"], capsys)
+        assert json.loads(out)["compatibility"] == after, out
+
+
+def test_undecided_setting_is_validated(tmp_path, capsys):
+    (tmp_path / "evolint.toml").write_text('undecided = "maybe"\n')
+    status, _, err = run(["check", "a.avsc", "b.avsc", "--config", str(tmp_path / "evolint.toml")], capsys)
+    assert status == 2 and "undecided" in err and err.count("\n") == 1

@@ -113,6 +113,9 @@ class _Paths(Mapping):
     def __len__(self):
         return len(self._roots)
 
+    def __reduce__(self):  # crossing to another process: the listed paths, not the model
+        return dict, (dict(self._load()),)
+
 
 def diff(old: Schema, new: Schema):
     return _diff(old.model, new.model)

@@ -6,6 +6,8 @@ from __future__ import annotations
 
 from collections import defaultdict
 
+from ._shared import effect as direction  # one wording of a finding's effect for every reporter
+
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
 ORDER = {"error": 0, "warning": 1, "info": 2}
 VERDICT = {
@@ -23,13 +25,6 @@ def console_for(stream, color: bool | None = None):
                    force_terminal=color, no_color=(color is False) or None, width=None)
 
 
-def direction(finding) -> str:
-    if finding.semantic:
-        return "changes meaning"
-    if finding.undecided:
-        return "undecided"
-    broken = finding.compatibility.breaks()
-    return "breaks " + " and ".join(broken) if broken else "compatible"
 
 
 def _one_line(text: str) -> str:

@@ -35,6 +35,18 @@ DIRECTIONS = ("backward", "forward")
 FALLBACK_SAMPLES = 150
 
 
+@dataclass
+class Pair:
+    """The two sides of a comparison as a format's witness module opened them."""
+
+    old: Any
+    new: Any
+
+    def sides(self, direction: str) -> tuple[Any, Any]:
+        """(writer, reader): backward reads OLD data with NEW, forward the reverse."""
+        return (self.old, self.new) if direction == "backward" else (self.new, self.old)
+
+
 @dataclass(frozen=True)
 class Trial:
     """One datum written with the writer side and read with the reader side."""
@@ -123,8 +135,9 @@ def search(module, finding: Finding, writer, reader, direction: str, encoding: s
     # this change's failures from those of other changes in the same file.
     alone = module.isolate(finding, writer, reader) if hasattr(module, "isolate") else None
     first = None
+    focus = {"focus": finding.path} if getattr(module, "FOCUSED", False) else {}
     for datum in itertools.chain(targeted, fallback):
-        trial = module.run(writer, reader, finding.schema, datum, encoding)
+        trial = module.run(writer, reader, finding.schema, datum, encoding, **focus)
         if trial is None:
             continue  # the writer refused the datum: not writer data after all
         first = first or trial

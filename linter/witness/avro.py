@@ -24,7 +24,7 @@ from typing import Any
 
 from ..errors import InputError
 from ..formats import parse_json, read_text
-from . import Trial
+from . import Pair, Trial
 
 PRIMITIVES = {"null", "boolean", "int", "long", "float", "double", "bytes", "string"}
 NAMED = {"record", "error", "enum", "fixed"}
@@ -106,15 +106,6 @@ class Side:
         if not roots and self.parsed is not None:
             return self.parsed, self.plain  # an unnamed top-level type
         return None
-
-
-@dataclass
-class Pair:
-    old: Side
-    new: Side
-
-    def sides(self, direction: str) -> tuple[Side, Side]:
-        return (self.old, self.new) if direction == "backward" else (self.new, self.old)
 
 
 def _side(path: Path, display: str) -> Side:

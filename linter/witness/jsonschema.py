@@ -21,7 +21,7 @@ from typing import Any
 from urllib.parse import unquote, urlsplit
 
 from ..formats import parse_json, read_text
-from . import Trial
+from . import Pair, Trial
 
 DRAFTS = {
     "json-schema.org/draft-04/schema": "Draft4Validator",
@@ -68,15 +68,6 @@ class Side:
             return self.validator._resolver.lookup(ref).contents
         except Exception:  # noqa: BLE001 - private API or an unresolvable reference
             return True
-
-
-@dataclass
-class Pair:
-    old: Side
-    new: Side
-
-    def sides(self, direction: str) -> tuple[Side, Side]:
-        return (self.old, self.new) if direction == "backward" else (self.new, self.old)
 
 
 def _retriever(folder: Path):
@@ -176,7 +167,72 @@ def _number(schema: dict, rng, integer: bool) -> Any:
     return rng.choice((rng.uniform(low, high), float(round(rng.uniform(low, high)))))
 
 
+def _from_pattern(pattern: str, rng) -> str | None:
+    """A string matching a regular expression, from its parse tree (literals, classes, repeats,
+    groups, alternatives); None for constructs beyond that. Validation has the last word."""
+    try:
+        import re._parser as parser  # Python 3.11+
+        from re._constants import (ANY, AT, BRANCH, CATEGORY, IN, LITERAL, MAX_REPEAT, MIN_REPEAT,
+                                   NEGATE, NOT_LITERAL, RANGE, SUBPATTERN)
+        tree = parser.parse(pattern)
+    except Exception:  # noqa: BLE001 - a pattern Python cannot parse, or another Python
+        return None
+    categories = {"CATEGORY_DIGIT": "0123456789", "CATEGORY_WORD": "abcxyz019_",
+                  "CATEGORY_SPACE": " ", "CATEGORY_NOT_DIGIT": "abc-", "CATEGORY_NOT_WORD": "-. ",
+                  "CATEGORY_NOT_SPACE": "abc1"}
+
+    def emit(items, depth=0) -> str:
+        if depth > 20:
+            raise ValueError("too deep")
+        out = []
+        for op, arg in items:
+            if op is LITERAL:
+                out.append(chr(arg))
+            elif op is NOT_LITERAL:
+                out.append("a" if chr(arg) != "a" else "b")
+            elif op is ANY:
+                out.append(rng.choice("abc1"))
+            elif op is AT:
+                continue
+            elif op is IN:
+                if arg and arg[0][0] is NEGATE:
+                    out.append("é")  # outside the ASCII classes patterns usually negate
+                    continue
+                op2, arg2 = rng.choice(arg)
+                if op2 is LITERAL:
+                    out.append(chr(arg2))
+                elif op2 is RANGE:
+                    out.append(chr(rng.randint(*arg2)))
+                elif op2 is CATEGORY:
+                    out.append(rng.choice(categories.get(str(arg2), "a")))
+                else:
+                    raise ValueError(op2)
+            elif op is CATEGORY:
+                out.append(rng.choice(categories.get(str(arg), "a")))
+            elif op in (MAX_REPEAT, MIN_REPEAT):
+                lo, hi, sub = arg
+                hi = min(hi, lo + 3)
+                out.extend(emit(sub, depth + 1) for _ in range(rng.randint(lo, max(lo, hi))))
+            elif op is SUBPATTERN:
+                out.append(emit(arg[-1], depth + 1))
+            elif op is BRANCH:
+                out.append(emit(rng.choice(arg[1]), depth + 1))
+            else:
+                raise ValueError(op)
+        return "".join(out)
+
+    try:
+        return emit(tree)
+    except (ValueError, TypeError, IndexError):
+        return None
+
+
 def _string(schema: dict, rng) -> str:
+    pattern = schema.get("pattern")
+    if isinstance(pattern, str) and rng.random() < 0.9:
+        made = _from_pattern(pattern, rng)
+        if made is not None:
+            return made
     fmt = schema.get("format")
     if fmt in FORMATS and rng.random() < 0.9:
         return FORMATS[fmt]
@@ -519,26 +575,48 @@ def _dotted(path) -> str:
     return ".".join(str(p) for p in path if not isinstance(p, int))
 
 
-def run(writer: Side, reader: Side, root: str, datum: Any, encoding: str | None = None) -> Trial | None:
+# The driver passes the finding's path, so that of several errors the one there is reported.
+FOCUSED = True
+
+
+def _error_paths(err) -> tuple[str, ...]:
+    path = _dotted(err.absolute_path)
+    inst = err.instance if isinstance(err.instance, dict) else {}
+    if err.validator == "required" and isinstance(err.validator_value, list):
+        # The missing member lies below the object the error points at.
+        missing = [m for m in err.validator_value if m not in inst]
+        return tuple(f"{path}.{m}" if path else m for m in missing) or (path,)
+    if err.validator == "additionalProperties" and isinstance(err.schema, dict):
+        known = set(err.schema.get("properties") or {})
+        extra = [k for k in inst if k not in known]
+        return tuple(f"{path}.{k}" if path else k for k in extra) or (path,)
+    return (path,)
+
+
+def run(writer: Side, reader: Side, root: str, datum: Any, encoding: str | None = None,
+        focus: str | None = None) -> Trial | None:
     """Validate under the writer (None if it rejects the datum), then under the reader."""
+    from . import overlaps
+
     if datum is NOTHING or not writer.valid(datum):
         return None
     if reader.valid(datum):
         return Trial(datum, False, "valid under both schemas")
     err = reader.error(datum)
+    if focus is not None and hasattr(err, "absolute_path"):
+        try:
+            near = [e for e in reader.validator.iter_errors(datum)
+                    if any(overlaps(p, focus) for p in _error_paths(e)) and (focus or not _error_paths(e)[0])]
+        except Exception:  # noqa: BLE001
+            near = []
+        err = near[0] if near else err
     if err is None or isinstance(err, Exception) and not hasattr(err, "absolute_path"):
         return Trial(datum, True, f"the reader cannot validate it: {err}", error=True)
     where = "/" + "/".join(str(p) for p in err.absolute_path)
     message = " ".join(str(err.message).split())
     if len(message) > 200:
         message = message[:197] + "..."
-    path = _dotted(err.absolute_path)
-    if err.validator == "required" and isinstance(err.validator_value, list):
-        # The missing member lies below the object the error points at.
-        missing = [m for m in err.validator_value if isinstance(err.instance, dict) and m not in err.instance]
-        paths = tuple(f"{path}.{m}" if path else m for m in missing) or (path,)
-    else:
-        paths = (path,)
+    paths = _error_paths(err)
     return Trial(datum, True, f"the reader rejects it: {message} (at {where}, keyword {err.validator})", paths)
 
 

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from . import Trial
+from . import Pair, Trial
 
 # Further encodings a run can use besides the binary one (verify --count-encoding).
 ENCODINGS = ("json",)
@@ -64,15 +64,6 @@ class Side:
 
         desc = self.descriptor(name)
         return message_factory.GetMessageClass(desc) if desc is not None else None
-
-
-@dataclass
-class Pair:
-    old: Side
-    new: Side
-
-    def sides(self, direction: str) -> tuple[Side, Side]:
-        return (self.old, self.new) if direction == "backward" else (self.new, self.old)
 
 
 def _side(path: Path, display: str, options=None) -> Side:

@@ -4,67 +4,25 @@ A semantic change cannot make a codec fail: that is its danger. Its witness is t
 an example value written with the OLD schema, run through the format's real codec to the
 NEW reader (confirmed: it reads back unchanged, so nothing warns anyone), with the
 interpretation each side gives it: 1500 written in ms is read as 1500 s, a thousand times
-the value meant. Unit arithmetic uses pint; UCUM codes (The Unified Code for Units of
-Measure) that pint spells differently are translated first.
+the value meant. Unit arithmetic is the semantics module's (linter/units.py: UCUM codes read, pint converts).
 """
 from __future__ import annotations
 
 import random
-import re
-from functools import lru_cache
 
 from . import Witness, seed_for
 
 EXAMPLE = 1500
-# UCUM code -> pint spelling, for the codes where the two differ (UCUM, tables of units).
-UCUM = {"Cel": "degC", "[degF]": "degF", "[degR]": "degR", "K": "kelvin", "L": "liter", "l": "liter",
-        "h": "hour", "min": "minute", "d": "day", "a": "year", "wk": "week", "mo": "month",
-        "[psi]": "psi", "bar": "bar", "[gal_us]": "gallon", "[gal_br]": "imperial_gallon",
-        "[ft_i]": "foot", "[in_i]": "inch", "[mi_i]": "mile", "[lb_av]": "pound", "t": "tonne",
-        "%": "percent", "[ppm]": "ppm", "[ppb]": "ppb", "1": "dimensionless"}
-_POWER = re.compile(r"(?<=[A-Za-z\]])(-?\d+)")
-
-
-@lru_cache(maxsize=1)
-def _registry():
-    import pint
-
-    return pint.UnitRegistry()
-
-
-def _pint_name(code: str) -> str:
-    code = code.strip()
-    if code in UCUM:
-        return UCUM[code]
-    parts = re.split(r"([./])", code)
-    out = []
-    for part in parts:
-        if part in (".", "/"):
-            out.append("*" if part == "." else "/")
-            continue
-        base = _POWER.sub(r"**\1", part)
-        name = base.split("**")[0]
-        out.append(base.replace(name, UCUM.get(name, name), 1))
-    return "".join(out)
 
 
 def interpret(value: float, old_unit: str, new_unit: str) -> str:
     """How ``value`` written in ``old_unit`` reads when taken to be in ``new_unit``."""
-    try:
-        ureg = _registry()
-        meant = ureg.Quantity(value, _pint_name(old_unit))
-        taken = ureg.Quantity(value, _pint_name(new_unit))
-    except Exception:  # noqa: BLE001 - pint raises many types for a code it does not know
-        return f"the reader takes {value} {old_unit} as {value} {new_unit}"
-    if meant.dimensionality != taken.dimensionality:
-        return (f"the reader takes {value} {old_unit} as {value} {new_unit}: a different kind of quantity "
-                f"({meant.dimensionality} written, {taken.dimensionality} read)")
-    as_old = taken.to(meant.units).magnitude
-    # A ratio means something only between scales without an offset (not Cel -> [degF]).
-    scaled = ureg.Quantity(0, taken.units).to(meant.units).magnitude == 0
-    ratio = f"; {_num(as_old / value)} times the value meant" if scaled and as_old != value else ""
-    return (f"the reader takes {value} {old_unit} as {value} {new_unit}, which is "
-            f"{_num(as_old)} {old_unit}{ratio}")
+    from ..units import relate  # the semantics module's UCUM reading, one for the whole tool
+
+    rel = relate(old_unit, new_unit)
+    facts = {"old_unit": old_unit, "new_unit": new_unit, "factor": rel.factor, "offset": rel.offset,
+             "old_dimension": rel.old_dimension, "new_dimension": rel.new_dimension}
+    return from_facts(value, facts) or f"the reader takes {value} {old_unit} as {value} {new_unit}"
 
 
 def from_facts(value: float, facts) -> str | None:

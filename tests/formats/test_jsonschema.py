@@ -231,3 +231,30 @@ def test_undecided_counts_as_breaking_unless_the_policy_says_otherwise():
                            policy=Policy(mode="backward", undecided="compatible"))
     (finding,) = lenient.findings
     assert finding.undecided and lenient.compatibility.value == "full" and lenient.passed
+
+
+def _vocabulary_2020(name):
+    import jsonschema_specifications
+
+    root = Path(jsonschema_specifications.__file__).parent / "schemas" / "draft202012" / "vocabularies"
+    return json.loads((root / name).read_text())
+
+
+# Mutations of the 2020-12 validation vocabulary: $dynamicRef, $defs and a copy whose $id
+# equals the bundled one (the file read must win over the bundled copy).
+VOCABULARY_MUTATIONS = [
+    ("non-negative-from-one", lambda s: s["$defs"]["nonNegativeInteger"].__setitem__("minimum", 1), "forward", "J021"),
+    ("simple-type-added", lambda s: s["$defs"]["simpleTypes"]["enum"].append("decimal"), "backward", "J012"),
+    ("property-declared", lambda s: s["properties"].__setitem__("x-extra", {"type": "string"}), "forward", "J071"),
+    ("const-dropped", lambda s: s["properties"].pop("const"), "full", None),
+]
+
+
+@pytest.mark.parametrize("name,mutate,verdict,rule", VOCABULARY_MUTATIONS, ids=[m[0] for m in VOCABULARY_MUTATIONS])
+def test_mutated_2020_12_vocabulary(tmp_path, name, mutate, verdict, rule):
+    schema = _vocabulary_2020("validation")
+    changed = copy.deepcopy(schema)
+    mutate(changed)
+    report = linter.check(write(tmp_path, "old.json", schema), write(tmp_path, "new.json", changed), mode="none")
+    assert report.compatibility.value == verdict, [f.message for f in report.findings]
+    assert (rule in rules(report)) if rule else rules(report) == []

@@ -95,3 +95,21 @@ def test_references_resolve_locally(tmp_path):
     pair = pair_of(tmp_path, old, new)
     w = witness_for(finding("hours", Compat.FORWARD), "jsonschema", pair)
     assert w.confirmed and 12 < w.datum["hours"] <= 48
+
+
+def test_patterns_are_generated_so_required_members_can_be_written(tmp_path):
+    old = notice(properties={"notice_id": {"type": "string", "pattern": "^SN-[0-9]{6}$"}},
+                 required=["kind", "notice_id"])
+    pair = pair_of(tmp_path, old, old)
+    writer, _ = pair.sides("backward")
+    rng = random.Random(5)
+    data = [js.random_datum(writer, ID, rng) for _ in range(50)]
+    assert sum(d is not js.NOTHING for d in data) > 40
+
+
+def test_the_error_reported_is_the_one_at_the_finding(tmp_path):
+    # Two changes: a closed object and a removed enum value; the enum finding names its value.
+    new = notice(properties={"kind": {"enum": ["planned"]}}, additionalProperties=False)
+    pair = pair_of(tmp_path, notice(), new)
+    w = witness_for(finding("kind", Compat.FORWARD), "jsonschema", pair)
+    assert w.confirmed and "keyword enum" in w.outcome, w.outcome

@@ -4,12 +4,12 @@ from linter.witness.semantic import from_facts, interpret
 
 def test_scale_change_names_the_factor():
     assert "1000 times" in interpret(1500, "ms", "s")
-    assert "1.5e+06 L" in interpret(1500, "L", "m3")
+    assert "meant 1.5 m3" in interpret(1500, "L", "m3")
 
 
 def test_offset_change_gives_no_ratio():
     text = interpret(20, "Cel", "[degF]")
-    assert "-6.66667 Cel" in text and "times" not in text  # (20 - 32) x 5/9
+    assert "meant 68 [degF]" in text and "times" not in text  # NIST SP 811: degF = degC x 9/5 + 32
 
 
 def test_dimension_change_says_so():
