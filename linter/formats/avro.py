@@ -269,6 +269,14 @@ class _Differ:
                                                    ctx.old_loc, ctx.new_loc))
         pairs, old_left, new_left = _pair_fields(o, n)
         for of, nf in pairs:
+            # A field written the same on both sides with a primitive type named by a string
+            # ("int", not a reference to a named type) has nothing to report: its name, doc,
+            # aliases, order and annotations are equal, and defaults valid for a primitive
+            # that compare equal as JSON compare equal as Avro reads them. An inherited unit
+            # is reported at the record. Most fields of a large schema are such pairs.
+            if of.raw == nf.raw and of.type.raw is None and of.type.kind in PRIMITIVES \
+                    and nf.type.raw is None and nf.type.kind == of.type.kind:
+                continue
             self.field(of, nf, ctx, o, n)
         for of in old_left:
             fctx = ctx.at(of.name, (self.old, of.raw), None)
