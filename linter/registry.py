@@ -128,6 +128,10 @@ def _check_nodes(root, display: str) -> None:
             for key, value in node.value:
                 if not isinstance(key, yaml.ScalarNode):
                     raise InputError("a key must be plain text, not a list or a mapping", display, *_mark(key))
+                if key.tag not in (merge, "tag:yaml.org,2002:str"):
+                    # `? ` alone, `1:`, `true:`: keys the schema check cannot match as text
+                    raise InputError(f"a key must be plain text, not {_short_tag(key.tag)} {key.value!r}",
+                                     display, *_mark(key))
                 if key.tag != merge:
                     if key.value in keys:
                         raise InputError(f"duplicate key {key.value!r} (first at line {keys[key.value]})",

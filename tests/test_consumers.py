@@ -117,6 +117,9 @@ BAD = {
     # found by the fuzz suite: a mapping used as a key composes, but is not plain data
     "mapping as a key": ("consumers:\n  - name: a\n    reads:\n      - schema: x\n    ?  fields: [a]\n",
                          5, "a key must be plain text"),
+    # found by the fuzz suite: a lone "?" is a mapping with a null key
+    "null key": ("?\n", 1, "a key must be plain text, not !!null"),
+    "number key": ("consumers:\n  - name: a\n    1: x\n", 3, "a key must be plain text, not !!int"),
 }
 
 
