@@ -154,19 +154,24 @@ PROTO_TOKENS = ["message", "enum", "oneof", "map<string, int32>", "repeated", "o
 
 
 @st.composite
-def proto_mutated(draw, seed: str = PROTO_SEED):
-    """The seed .proto with a few tokens deleted, inserted or swapped."""
-    parts = seed.replace("\n", " \n ").split(" ")
+def token_edits(draw, text: str, tokens, keep_lines: bool = False):
+    """``text`` with one to four space-separated tokens deleted, inserted or replaced."""
+    parts = (text.replace("\n", " \n ") if keep_lines else text).split(" ")
     for _ in range(draw(st.integers(1, 4))):
         i = draw(st.integers(0, len(parts) - 1))
         op = draw(st.sampled_from(["drop", "insert", "replace"]))
         if op == "drop":
             parts.pop(i)
         elif op == "insert":
-            parts.insert(i, draw(st.sampled_from(PROTO_TOKENS)))
+            parts.insert(i, draw(tokens))
         else:
-            parts[i] = draw(st.sampled_from(PROTO_TOKENS) | st.text(max_size=6))
+            parts[i] = draw(tokens)
     return " ".join(parts)
+
+
+def proto_mutated(seed: str = PROTO_SEED):
+    """The seed .proto with a few tokens deleted, inserted or swapped."""
+    return token_edits(seed, st.sampled_from(PROTO_TOKENS) | st.text(max_size=6), keep_lines=True)
 
 
 def dumps(doc) -> str:

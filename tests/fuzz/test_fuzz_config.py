@@ -1,6 +1,7 @@
 """Fuzz: random text and token mutations of a valid configuration file (evolint.toml)."""
 import json
 
+from fuzz_seeds import token_edits
 from harness import assert_handled, needs, run_main
 from hypothesis import given
 from hypothesis import strategies as st
@@ -41,20 +42,8 @@ AVRO = json.dumps({"type": "record", "name": "MeterReading", "namespace": "utili
                    "fields": [{"name": "volume", "type": "double"}]})
 
 
-@st.composite
-def mutated(draw):
-    parts = VALID.split(" ")
-    for _ in range(draw(st.integers(1, 4))):
-        i = draw(st.integers(0, len(parts) - 1))
-        op = draw(st.sampled_from(["drop", "insert", "replace"]))
-        token = draw(st.sampled_from(TOKENS) | st.text(max_size=5))
-        if op == "drop":
-            parts.pop(i)
-        elif op == "insert":
-            parts.insert(i, token)
-        else:
-            parts[i] = token
-    return " ".join(parts)
+def mutated():
+    return token_edits(VALID, st.sampled_from(TOKENS) | st.text(max_size=5))
 
 
 def judge(scratch, text):

@@ -4,6 +4,7 @@ The comparison itself is a pair of folders with one added Avro file: what is exe
 the registry's loading, validation and matching.
 """
 import yaml
+from fuzz_seeds import token_edits
 from harness import assert_handled, needs, run_main
 from hypothesis import given
 from hypothesis import strategies as st
@@ -34,20 +35,8 @@ data = st.recursive(st.none() | st.booleans() | st.integers() | st.sampled_from(
                     max_leaves=25)
 
 
-@st.composite
-def mutated_text(draw):
-    parts = VALID.split(" ")
-    for _ in range(draw(st.integers(1, 4))):
-        i = draw(st.integers(0, len(parts) - 1))
-        token = draw(st.sampled_from(YAML_TOKENS + WORDS))
-        op = draw(st.sampled_from(["drop", "insert", "replace"]))
-        if op == "drop":
-            parts.pop(i)
-        elif op == "insert":
-            parts.insert(i, token)
-        else:
-            parts[i] = token
-    return " ".join(parts)
+def mutated_text():
+    return token_edits(VALID, st.sampled_from(YAML_TOKENS + WORDS))
 
 
 def judge(scratch, text):
