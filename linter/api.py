@@ -141,9 +141,16 @@ def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: 
         raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
                          pair.new_display)
     module = adapter(fmt_old)
-    old_schema = preloaded.get(pair.old_display) or module.load(pair.old, pair.old_display, old_options or options)
-    new_schema = preloaded.get(pair.new_display) or module.load(pair.new, pair.new_display, options)
-    changes = module.diff(old_schema, new_schema)
+    try:
+        display = pair.old_display
+        old_schema = preloaded.get(display) or module.load(pair.old, display, old_options or options)
+        display = pair.new_display
+        new_schema = preloaded.get(display) or module.load(pair.new, display, options)
+        display = f"{pair.old_display} and {pair.new_display}"
+        changes = module.diff(old_schema, new_schema)
+    except RecursionError:
+        # Adapters walk iteratively where they can; what still recurses is refused, named.
+        raise InputError("schema nested too deeply to read or compare", display) from None
     findings = engine.judge(changes, cat, policy)
     return Comparison(pair.old_display, pair.new_display, fmt_old, tuple(findings), policy.mode,
                       old_fields=old_schema.fields)  # adapters may list paths lazily: keep it so
