@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import copy
 import gc
+from collections.abc import Mapping
 from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
@@ -91,11 +92,37 @@ def _load(path: Path, display: str) -> Schema:
         model = parse(data, display, sourcemap.locate)
         _fastavro_gate(data, model, display)
         roots = root_names(model.root, display)
-        fields = {root: frozenset(field_paths(model.names[root])) if root in model.names else frozenset()
-                  for root in roots}
     except RecursionError:
         raise InputError("schema nested too deeply to read", display) from None
-    return Schema("avro", display, roots, fields, Loaded(model, display, sourcemap))
+    return Schema("avro", display, roots, _Paths(model, roots), Loaded(model, display, sourcemap))
+
+
+class _Paths(Mapping):
+    """Schema.fields, each root's paths listed when first asked for (consumer runs only).
+
+    Types that nest each other (a chain of records, each holding the previous one) give
+    every root all the paths below it: listing them all up front is quadratic.
+    """
+
+    def __init__(self, model: Model, roots: tuple[str, ...]):
+        self._model, self._roots, self._paths = model, roots, {}
+
+    def __getitem__(self, root: str) -> frozenset[str]:
+        if root not in self._roots:
+            raise KeyError(root)
+        if root not in self._paths:
+            node = self._model.names.get(root)
+            self._paths[root] = frozenset(field_paths(node)) if node is not None else frozenset()
+        return self._paths[root]
+
+    def __iter__(self):
+        return iter(self._roots)
+
+    def __len__(self):
+        return len(self._roots)
+
+    def __reduce__(self):  # crossing to another process: the listed paths, not the model
+        return dict, (dict(self.items()),)
 
 
 def _fastavro_gate(data, model: Model, display: str) -> None:
