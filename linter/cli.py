@@ -18,6 +18,14 @@ FORMAT_NAMES = ("avro", "protobuf", "jsonschema")
 ENCODINGS = ("json",)
 
 
+def reading_options(command):
+    """The options every command that reads schema files takes: --format and -I."""
+    command = click.option("-I", "--include", "include", multiple=True, type=click.Path(),
+                           help="Add a Protobuf import path (repeatable).")(command)
+    return click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
+                        help="Schema language, when the extension does not tell.")(command)
+
+
 class Failed(Exception):
     """Carries an exit status out of a command without printing a traceback."""
 
@@ -38,10 +46,7 @@ def cli(ctx, debug):
 @click.argument("paths", nargs=-1, type=click.Path(), metavar="OLD NEW | [PATHS]...")
 @click.option("--mode", type=click.Choice(MODES), default=None,
               help="The compatibility the change must keep.  [default: backward, or the configuration's]")
-@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
-              help="Schema language, when the extension does not tell.")
-@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
-              help="Add a Protobuf import path (repeatable).")
+@reading_options
 @click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
               help="Also count this encoding's effect toward the verdict (Protobuf: json, the proto3 "
                    "JSON mapping; the binary encoding always counts). Repeatable.")
@@ -79,10 +84,7 @@ def check(paths, mode, format_, include, encodings, output, consumers, witness, 
 @click.option("--mode", type=click.Choice(MODES), default=None,
               help="The compatibility the change must keep (a consumer's own 'needs' wins).  "
                    "[default: backward, or the configuration's]")
-@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
-              help="Schema language, when the extension does not tell.")
-@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
-              help="Add a Protobuf import path (repeatable).")
+@reading_options
 @click.option("--base", metavar="REF", default=None,
               help="Announce the change from this git revision to the working tree; PATHS limit the files.")
 @click.option("--staged", is_flag=True, help="With git: announce what is staged, not the working tree.")
@@ -113,10 +115,7 @@ def announce(paths, consumers, mode, format_, include, base, staged, config_file
 @click.option("--samples", type=click.IntRange(1, 100_000), default=200, show_default=True,
               help="Random data per direction and root type.")
 @click.option("--seed", type=int, default=0, show_default=True, help="Seed of the random data.")
-@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
-              help="Schema language, when the extension does not tell.")
-@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
-              help="Add a Protobuf import path (repeatable).")
+@reading_options
 @click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True,
               help="Report format.")
 @click.option("--count-encoding", "encodings", multiple=True, type=click.Choice(ENCODINGS),
@@ -139,10 +138,7 @@ def verify(old, new, samples, seed, format_, include, output, encodings):
               help="Compare each version with every earlier one, not only its predecessor.")
 @click.option("--mode", type=click.Choice(MODES), default=None,
               help="The compatibility each step must keep.  [default: backward, or the configuration's]")
-@click.option("--format", "format_", type=click.Choice(FORMAT_NAMES),
-              help="Schema language, when the extension does not tell.")
-@click.option("-I", "--include", "include", multiple=True, type=click.Path(),
-              help="Add a Protobuf import path (repeatable).")
+@reading_options
 @click.option("--output", type=click.Choice(("text", "json")), default="text", show_default=True)
 @click.option("--config", "config_file", type=click.Path(dir_okay=False), help="Configuration file.")
 def history(target, use_git, every_earlier, mode, format_, include, output, config_file):
