@@ -145,7 +145,12 @@ def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: 
         display = pair.old_display
         old_schema = preloaded.get(display) or module.load(pair.old, display, old_options or options)
         display = pair.new_display
-        new_schema = preloaded.get(display) or module.load(pair.new, display, options)
+        new_schema = preloaded.get(display)
+        if new_schema is None:
+            # An adapter may read NEW knowing OLD, to share what is written the same.
+            beside = getattr(module, "load_beside", None)
+            new_schema = (beside(pair.new, display, options, old_schema) if beside
+                          else module.load(pair.new, display, options))
         display = f"{pair.old_display} and {pair.new_display}"
         changes = module.diff(old_schema, new_schema)
     except RecursionError:

@@ -3,16 +3,16 @@
 The standard library's C decoder gives no positions, and the pure-Python scanner that
 could is several times slower. Instead: the decoder builds containers in document
 order, so a preorder walk of the parsed tree meets them in the order their opening
-brackets appear in the text. One regular-expression pass over the text lists those
-brackets (skipping strings), and the k-th container met is the k-th bracket.
-The map is built only when a location is first asked for.
+brackets appear in the text, and the k-th container met is the k-th bracket. When the
+text holds exactly as many brackets as the tree holds containers, no string holds one
+and splitting the text finds them; otherwise one regular-expression pass lists the
+brackets outside strings. The map is built only when a location is first asked for.
 """
 from __future__ import annotations
 
 import bisect
 import operator
 import re
-from itertools import accumulate
 
 # Strings in the unrolled form (runs of plain characters, then one escape): the same
 # language as "(?:[^"\\]|\\.)*", about a quarter faster on large files (benchmarks/scale.py).
@@ -26,35 +26,82 @@ _BRACKETS = re.compile(r'(?:[^"{\[]++|(?>' + _STRING + r'))*+(?:([{\[])|\Z)')
 _SPACE = re.compile(r"\s*")
 
 
+def _preorder(tree) -> list[int]:
+    """Ids of the containers of a parsed JSON tree, in document (pre)order.
+
+    Iterative, so deep documents do not hit the recursion limit; a stack of iterators
+    and exact class tests ran in less than half the time of a stack of child lists.
+    """
+    order: list[int] = []
+    visit = order.append
+    stack = [iter((tree,))]
+    push, pop = stack.append, stack.pop
+    while stack:
+        for child in stack[-1]:
+            cls = child.__class__
+            if cls is dict:
+                visit(id(child))
+                push(iter(child.values()))
+                break
+            if cls is list:
+                visit(id(child))
+                push(iter(child))
+                break
+        else:
+            pop()
+    return order
+
+
+def _find_all(text: str, chars: str) -> list[int]:
+    """Sorted offsets of every one of ``chars`` in ``text`` (str.find runs in C; a loop
+    over its hits took half the time of splitting, benchmarks/scale.py)."""
+    out: list[int] = []
+    add, find = out.append, text.find
+    for char in chars:
+        i = find(char)
+        while i >= 0:
+            add(i)
+            i = find(char, i + 1)
+    out.sort()
+    return out
+
+
 class SourceMap:
     def __init__(self, text: str, tree):
         self._text = text
         self._tree = tree
         self._positions: dict[int, int] | None = None
-        self._lines: list[int] | None = None
+        # (offset, line, offset of that line's start), sorted by offset: each line number
+        # is counted from the nearest mark before it. Splitting a large file into lines
+        # up front cost more than the rest of the map (benchmarks/scale.py).
+        self._marks: list[tuple[int, int, int]] = [(0, 0, 0)]
 
     def _build(self) -> None:
         text = self._text
-        offsets = [s for s in map(operator.methodcaller("start", 1), _BRACKETS.finditer(text)) if s >= 0]
-        order: list[int] = []  # ids of the containers in preorder
-        stack = [self._tree] if isinstance(self._tree, (dict, list)) else []
-        push, visit, containers = stack.extend, order.append, (dict, list)
-        # Iterative preorder: deep documents must not hit the recursion limit.
-        while stack:
-            node = stack.pop()
-            visit(id(node))
-            kids = [c for c in (node.values() if isinstance(node, dict) else node) if isinstance(c, containers)]
-            if kids:
-                kids.reverse()
-                push(kids)
+        order = _preorder(self._tree)
+        if text.count("{") + text.count("[") == len(order):
+            # As many brackets as containers: none is inside a string, so the k-th bracket
+            # is the k-th container, found without the string pattern (a quarter of its
+            # time on large files, benchmarks/scale.py).
+            offsets = _find_all(text, "{[")
+        else:
+            offsets = [s for s in map(operator.methodcaller("start", 1), _BRACKETS.finditer(text)) if s >= 0]
         # Duplicate keys discard containers the text still holds: positions would drift,
-        # so give none rather than wrong ones.
-        positions = dict(zip(order, offsets)) if len(order) == len(offsets) else {}
-        self._positions = positions
-        # Offsets of the newlines, from the lengths of the lines between them.
-        parts = text.split("\n")
-        parts.pop()
-        self._lines = list(map(operator.add, accumulate(map(len, parts)), range(len(parts))))
+        # so give none rather than wrong ones. (The count check above cannot tell those
+        # apart from as many brackets inside strings; the two together are not met in
+        # schema files, and would shift line numbers, never verdicts.)
+        self._positions = dict(zip(order, offsets)) if len(order) == len(offsets) else {}
+
+    def _line_and_column(self, offset: int) -> tuple[int, int]:
+        marks, text = self._marks, self._text
+        i = bisect.bisect_right(marks, offset, key=operator.itemgetter(0)) - 1
+        at, line, start = marks[i]
+        more = text.count("\n", at, offset)
+        if more:
+            line += more
+            start = text.rfind("\n", at, offset) + 1
+        marks.insert(i + 1, (offset, line, start))
+        return line + 1, offset - start + 1
 
     def locate(self, node) -> tuple[int, int] | None:
         """(line, column), 1-based, of the first member inside a dict or list node."""
@@ -67,9 +114,7 @@ class SourceMap:
         inner = _SPACE.match(self._text, offset + 1).end()
         if inner < len(self._text) and self._text[inner] not in "}]":
             offset = inner
-        line = bisect.bisect_left(self._lines, offset)
-        start = self._lines[line - 1] + 1 if line else 0
-        return line + 1, offset - start + 1
+        return self._line_and_column(offset)
 
     def line_of(self, node) -> int | None:
         where = self.locate(node)

@@ -334,8 +334,12 @@ class Relation:
 REL_TOL = 1e-9  # float noise in chained definitions (0.0254 ** 3) stays far below this
 
 
+@lru_cache(maxsize=1024)
 def relate(old: str, new: str) -> Relation:
-    """Classify a change of unit text from OLD to NEW."""
+    """Classify a change of unit text from OLD to NEW.
+
+    Cached: a schema that changes one unit on many fields asks the same question each
+    time, and pint takes about a millisecond to answer it (benchmarks/scale.py)."""
     if old.strip() == new.strip():
         return Relation("same", 1.0, 0.0)
     try:

@@ -41,10 +41,14 @@ LOGICAL = {
     "local-timestamp-nanos": ("long",),
     "duration": ("fixed",),
 }
+ORDERS = ("ascending", "descending", "ignore")
+_MISSING = object()
 INT_RANGE = {"int": (-2**31, 2**31 - 1), "long": (-2**63, 2**63 - 1)}
 
 
-@dataclass(eq=False)
+# Slots: a 100,000-field schema makes a Field per field, and instances without a
+# __dict__ are smaller, quicker to build and half the objects for the collector.
+@dataclass(eq=False, slots=True)
 class Field:
     name: str
     type: "Node"
@@ -58,7 +62,7 @@ class Field:
     raw: Any = None
 
 
-@dataclass(eq=False)
+@dataclass(eq=False, slots=True)
 class Node:
     kind: str                       # a primitive name, record, enum, fixed, array, map, union
     name: str | None = None         # full name of a named type
@@ -76,6 +80,13 @@ class Node:
     doc: str | None = None
     annotations: dict = field(default_factory=dict)
     raw: Any = None
+    # Records: whether the definition refers by name to a type defined outside it (then
+    # an identical text may still read differently), and, where it does not, the range of
+    # Model.defined its definition holds (itself first), when nothing in it was ignored
+    # by the gate; a NEW schema reuses such a record of OLD's written the same.
+    outside_refs: bool = True
+    span: tuple[int, int] | None = None
+    _by_name: Any = field(default=None, init=False, repr=False)
 
     @property
     def short(self) -> str | None:
@@ -88,12 +99,12 @@ class Node:
     def field(self, name: str) -> Field | None:
         # By name through an index: a linear scan per lookup made records of thousands of
         # fields quadratic (benchmarks/scale.py). Rebuilt whenever the field list has grown.
-        index = self.__dict__.get("_by_name")
+        index = self._by_name
         if index is None or index[0] != len(self.fields):
             index = (len(self.fields), {})
             for f in self.fields:
                 index[1].setdefault(f.name, f)
-            self.__dict__["_by_name"] = index
+            self._by_name = index
         return index[1].get(name)
 
     def describe(self) -> str:
@@ -117,6 +128,8 @@ class Model:
     names: dict[str, Node]
     # Objects whose logicalType the spec says to ignore (unknown or invalid).
     ignored_logical: list = field(default_factory=list)
+    # Named types in order of definition.
+    defined: list = field(default_factory=list)
 
 
 def annotations_of(obj: dict) -> dict:
@@ -127,11 +140,21 @@ def annotations_of(obj: dict) -> dict:
 
 
 class _Parser:
-    def __init__(self, display: str, locate):
+    def __init__(self, display: str, locate, previous: Model | None = None):
         self.display = display
         self.locate = locate
+        self.previous = previous
+        self.defined: list[Node] = []
         self.names: dict[str, Node] = {}
         self.ignored_logical: list = []
+        # A type named by a bare string ("long") has no attributes of its own: one shared
+        # node per primitive, not one per field.
+        self.primitives = {p: Node(kind=p) for p in PRIMITIVES}
+        # Named types by order of definition, and for each record being parsed the lowest
+        # such index it refers to by name: a record refers outside itself when that is
+        # below its own (everything it defines comes after it).
+        self.order: dict[int, int] = {}
+        self.open: list[list[int]] = []
 
     def fail(self, message: str, obj=None):
         where = self.locate(obj) if isinstance(obj, (dict, list)) else None
@@ -151,11 +174,15 @@ class _Parser:
 
     def reference(self, name: str, namespace: str | None, where) -> Node:
         if name in PRIMITIVES:
-            return Node(kind=name)
+            return self.primitives[name]
         candidates = [name] if "." in name else ([f"{namespace}.{name}"] if namespace else []) + [name]
         for candidate in candidates:
             if candidate in self.names:
-                return self.names[candidate]
+                node = self.names[candidate]
+                if self.open:
+                    low = self.open[-1]
+                    low[0] = min(low[0], self.order[id(node)])
+                return node
         self.fail(f"unknown type name '{name}'" + (f" (looked for '{candidates[0]}')" if candidates[0] != name else ""), where)
 
     def parse(self, obj, namespace: str | None, where=None) -> Node:
@@ -215,6 +242,10 @@ class _Parser:
         own_ns = full.rsplit(".", 1)[0] if "." in full else None
         if full in self.names or full in PRIMITIVES:
             self.fail(f"type '{full}' is defined twice", obj)
+        if kind == "record" and self.previous is not None:
+            adopted = self.adopt(full, obj)
+            if adopted is not None:
+                return adopted
         aliases = obj.get("aliases", [])
         if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
             self.fail(f"aliases of '{full}' must be a list of names", obj)
@@ -222,8 +253,20 @@ class _Parser:
                     aliases=tuple(self.full_name(a, own_ns, obj) for a in aliases),
                     annotations=annotations_of(obj))
         self.names[full] = node  # before the body: a record may refer to itself
+        seq = self.order[id(node)] = len(self.order)
+        self.defined.append(node)
         if kind == "record":
-            self.record_fields(node, obj, own_ns)
+            self.open.append([seq])
+            ignored = len(self.ignored_logical)
+            try:
+                self.record_fields(node, obj, own_ns)
+            finally:
+                low = self.open.pop()[0]
+            node.outside_refs = low < seq
+            if not node.outside_refs and len(self.ignored_logical) == ignored:
+                node.span = (seq, len(self.defined))
+            if self.open:
+                self.open[-1][0] = min(self.open[-1][0], low)
         elif kind == "enum":
             self.enum(node, obj)
         else:
@@ -234,11 +277,35 @@ class _Parser:
             self.logical(node, obj)
         return node
 
+    def adopt(self, full: str, obj: dict) -> Node | None:
+        """OLD's record ``full``, when it is written exactly as ``obj`` and self-contained.
+
+        It then parses to the same graph, so NEW shares OLD's nodes instead of walking its
+        fields again (most records of a large schema are unchanged; benchmarks/scale.py).
+        Where one of the names it defines is already taken, nothing is shared: the walk
+        then reports the clash where it is.
+        """
+        before = self.previous.names.get(full)
+        if before is None or before.span is None or before.raw != obj:
+            return None
+        held = self.previous.defined[before.span[0]:before.span[1]]
+        if any(n.name in self.names for n in held):
+            return None
+        for n in held:
+            self.names[n.name] = n
+            self.order[id(n)] = len(self.order)
+            self.defined.append(n)
+        return before
+
     def record_fields(self, node: Node, obj: dict, namespace: str | None):
         fields = obj.get("fields")
         if not isinstance(fields, list):
             self.fail(f"record '{node.name}' needs a 'fields' list", obj)
+        # The common field ({"name", "type": "long", "doc"}) takes the short way through
+        # each check: this loop runs once per field of both files (benchmarks/scale.py).
         seen = set()
+        out = node.fields
+        primitives = self.primitives
         for position, raw in enumerate(fields):
             if not isinstance(raw, dict):
                 self.fail(f"a field of record '{node.name}' must be an object", fields)
@@ -248,20 +315,31 @@ class _Parser:
             if name in seen:
                 self.fail(f"record '{node.name}' has two fields named '{name}'", raw)
             seen.add(name)
-            if "type" not in raw:
+            ftype = raw.get("type", _MISSING)
+            if ftype is _MISSING:
                 self.fail(f"field '{name}' needs a 'type'", raw)
-            aliases = raw.get("aliases", [])
-            if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
+            aliases = raw.get("aliases", ())
+            if aliases:
+                if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
+                    self.fail(f"aliases of field '{name}' must be a list of names", raw)
+                aliases = tuple(aliases)
+            elif aliases != [] and aliases != ():
                 self.fail(f"aliases of field '{name}' must be a list of names", raw)
+            else:
+                aliases = ()
             order = raw.get("order", "ascending")
-            if order not in ("ascending", "descending", "ignore"):
+            if order not in ORDERS:
                 self.fail(f"field '{name}' order must be ascending, descending or ignore, not {order!r}", raw)
-            ftype = self.parse(raw["type"], namespace, raw)
-            f = Field(name=name, type=ftype, position=position, has_default="default" in raw,
-                      default=raw.get("default"), aliases=tuple(aliases), order=order,
-                      doc=_doc(raw), annotations=annotations_of(raw), raw=raw)
-            node.fields.append(f)
-            if f.has_default:
+            if isinstance(ftype, str) and ftype in primitives:
+                ftype = primitives[ftype]
+            else:
+                ftype = self.parse(ftype, namespace, raw)
+            doc = raw.get("doc")
+            has_default = "default" in raw
+            f = Field(name, ftype, position, has_default, raw.get("default"), aliases, order,
+                      doc if isinstance(doc, str) else None, annotations_of(raw), raw)
+            out.append(f)
+            if has_default:
                 problem = default_problem(ftype, f.default)
                 if problem:
                     self.fail(f"field '{name}' default {_show(f.default)} {problem}", raw)
@@ -386,7 +464,10 @@ def default_branch(node: Node, value) -> Node:
     return node
 
 
-def parse(data, display: str, locate) -> Model:
-    parser = _Parser(display, locate)
+def parse(data, display: str, locate, previous: Model | None = None) -> Model:
+    """The node graph of ``data``; with ``previous`` (OLD's model, when this is NEW),
+    records written the same in both are shared rather than built twice."""
+    parser = _Parser(display, locate, previous)
     root = parser.parse(data, None, data if isinstance(data, (dict, list)) else None)
-    return Model(root=root, names=parser.names, ignored_logical=parser.ignored_logical)
+    return Model(root=root, names=parser.names, ignored_logical=parser.ignored_logical,
+                 defined=parser.defined)
