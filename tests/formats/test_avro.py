@@ -8,6 +8,8 @@ from pathlib import Path
 import click
 import pytest
 from click.testing import CliRunner
+from hypothesis import given
+from hypothesis import strategies as st
 
 from linter.cli import main
 from linter.errors import InputError
@@ -185,3 +187,12 @@ def test_deeply_nested_schema_is_bad_input_not_a_crash(tmp_path, depth):
     assert "Traceback" not in result.output and "internal error" not in result.output
     if result.exit_code == 2:
         assert "nested too deeply" in result.output or "recursion" in result.output, result.output
+
+
+@given(st.text(alphabet="aZ_09é\n .-", max_size=6) | st.text(max_size=4))
+def test_the_name_check_is_the_spec_pattern(text):
+    # Avro specification 1.12.0, "Names": [A-Za-z_][A-Za-z0-9_]*. The adapter tests it
+    # as an ASCII Python identifier (linter/formats/avro_schema.py).
+    import re
+
+    assert (text.isascii() and text.isidentifier()) == bool(re.fullmatch(r"[A-Za-z_][A-Za-z0-9_]*", text))
