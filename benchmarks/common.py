@@ -18,9 +18,9 @@ def evolint_command() -> list[str]:
     return [str(script)] if script.exists() else [sys.executable, "-m", "linter"]
 
 
-def run_wall(cmd: list[str], cwd=None) -> float:
+def run_wall(cmd: list[str], cwd=None, env=None) -> float:
     start = time.perf_counter()
-    proc = subprocess.run(cmd, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    proc = subprocess.run(cmd, cwd=cwd, env=env, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     elapsed = time.perf_counter() - start
     if proc.returncode not in (0, 1):
         raise SystemExit(f"benchmark command failed ({proc.returncode}): {' '.join(cmd)}\n"
