@@ -10,12 +10,11 @@ Avro specification 1.12.0, "Schema Resolution".
 from __future__ import annotations
 
 import copy
-import gc
 from collections.abc import Mapping
-from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 
+from ..collector import collector_paused
 from ..errors import InputError
 from ..model import Change, Location
 from ..semantics import annotation_changes
@@ -62,31 +61,14 @@ class Loaded:
         return Location(self.file, line)
 
 
-@contextmanager
-def _collector_paused():
-    """Pause the cyclic garbage collector while building or walking a node graph.
-
-    The walks allocate hundreds of thousands of long-lived objects, so the collector's
-    generational passes found almost nothing to free and took about half the time on a
-    100,000-field schema (benchmarks/scale.py). Restored as it was, even on error.
-    """
-    was_enabled = gc.isenabled()
-    gc.disable()
-    try:
-        yield
-    finally:
-        if was_enabled:
-            gc.enable()
-
-
 def load(path: Path, display: str, options: Options | None = None) -> Schema:
-    with _collector_paused():
+    with collector_paused():
         return _load(path, display)
 
 
 def load_beside(path: Path, display: str, options: Options | None, old: Schema) -> Schema:
     """NEW read beside OLD: records written the same in both share OLD's nodes."""
-    with _collector_paused():
+    with collector_paused():
         return _load(path, display, old.model.model if isinstance(old.model, Loaded) else None)
 
 
@@ -225,7 +207,7 @@ def diff(old: Schema, new: Schema) -> list[Change]:
     o, n = old.model.model.root, new.model.model.root
     schema = o.name if o.named else (n.name if n.named else new.file)
     try:
-        with _collector_paused():
+        with collector_paused():
             differ.node(o, n, Ctx(schema, "", (old.model, o.raw), (new.model, n.raw), top=True))
     except RecursionError:
         raise InputError("schemas nested too deeply to compare", new.file) from None
