@@ -13,6 +13,7 @@ from .. import semantics
 from ..model import Change, Location
 from .protobuf_model import Enum, Field, Message, Model, Service
 from .protobuf_types import KINDS as TYPE_KINDS, NUMERIC, scalar_change
+from .protobuf_usage import Uses
 
 
 @dataclass
@@ -21,7 +22,7 @@ class Side:
 
     model: Model
     roots: tuple[str, ...]
-    first: dict[str, dict[str, str]]   # type -> root -> shortest path prefix
+    first: Uses   # type -> root -> shortest path prefix
     file: str
 
 
@@ -122,11 +123,14 @@ class Differ:
             self.changes.append(Change(kind, schema, path, old, new, old_loc, new_loc,
                                        {"type": type_name, **facts}))
 
-    def annotations(self, type_name: str, leaf: str | None, old_ann, new_ann, old_loc, new_loc, **types):
-        """Unit and meaning changes; ``types`` passes a field's message annotations (a unit is inherited)."""
+    def annotations(self, type_name: str, leaf: str | None, old, new, **types):
+        """Unit and meaning changes of a paired message or field (``old``, ``new``); ``types``
+        passes a field's message annotations (a unit is inherited)."""
+        if old.ann == new.ann and types.get("old_type") == types.get("new_type"):
+            return  # equal annotations, inherited or not, change nothing
         for schema, prefix in self.targets(type_name):
             path = ".".join(p for p in (prefix, leaf) if p)
-            self.changes.extend(semantics.annotation_changes(schema, path, old_ann, new_ann, old_loc, new_loc,
+            self.changes.extend(semantics.annotation_changes(schema, path, old.ann, new.ann, old.loc, new.loc,
                                                              **types))
 
     # -- the walk ---------------------------------------------------------------------------
@@ -185,7 +189,7 @@ class Differ:
             # Within one file pair a package move is the file's package change (reported once).
             self.emit("protobuf-message-renamed", name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
                       old_name=a.full_name, new_name=b.full_name)
-        self.annotations(name, None, a.ann, b.ann, a.loc, b.loc)
+        self.annotations(name, None, a, b)
         pairs = []
         left = dict(a.fields)
         right = dict(b.fields)
@@ -280,7 +284,7 @@ class Differ:
         if f.is_map and g.is_map:
             self.map_entries(a, f, g)
         self.cardinality(name, leaf, f, g, base, types)
-        self.annotations(name, leaf, f.ann, g.ann, f.loc, g.loc, old_type=a.ann, new_type=b.ann)
+        self.annotations(name, leaf, f, g, old_type=a.ann, new_type=b.ann)
 
     def type_change(self, f: Field, g: Field) -> str | None:
         if f.is_map != g.is_map:
