@@ -13,7 +13,7 @@ from .. import semantics
 from ..model import Change, Location
 from .protobuf_model import Enum, Field, Message, Model, Service
 from .protobuf_types import KINDS as TYPE_KINDS, NUMERIC, scalar_change
-from .protobuf_usage import Uses
+from .protobuf_usage import Uses, steps
 
 
 @dataclass
@@ -144,8 +144,10 @@ class Differ:
         enum_pairs, enums_removed, enums_added = _pair(o.own_enums(), n.own_enums(), _enum_shape)
         for a, b in pairs + enum_pairs:
             self.renamed[a.full_name] = b.full_name
+        self.moved = {k for k, v in self.renamed.items() if k != v}
         for a, b in pairs:
-            self.message(a, b)
+            if not self.unchanged(a, b):
+                self.message(a, b)
         for m in removed:
             kind = "protobuf-message-removed" if m.parent is None else "protobuf-nested-message-removed"
             self.emit(kind, m.full_name, None, m.loc, None, old=m.full_name,
@@ -225,6 +227,20 @@ class Differ:
         for f, g in pairs:
             self.field(a, b, f, g)
         self.oneofs(a, b, pairs)
+
+    def unchanged(self, a: Message, b: Message) -> bool:
+        """A pair written alike, naming types that kept their names: nothing to report.
+
+        Checked on the descriptors' bytes, before any field is read. An enum value as a
+        default is left to the field walk: its number comes from the enum.
+        """
+        if not a.same_as(b) or a.enum_defaults:
+            return False
+        if self.moved:
+            for _, reached, _ in steps(self.old.model, a.full_name):
+                if any(t in self.moved for t in reached):
+                    return False
+        return True
 
     def _same_type(self, f: Field, g: Field) -> bool:
         if f.type_name is None or g.type_name is None:
@@ -399,6 +415,9 @@ class Differ:
 
     def enum(self, a: Enum, b: Enum):
         name = a.full_name
+        if (a.full_name == b.full_name and a.closed == b.closed
+                and [(v.name, v.number) for v in a.values] == [(v.name, v.number) for v in b.values]):
+            return  # the same values, the same way open or closed: nothing to report
         if a.full_name != b.full_name and not self.moved_with_package(a, b):
             self.emit("protobuf-enum-renamed", name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
                       old_name=a.full_name, new_name=b.full_name)

@@ -5,7 +5,8 @@ from a descriptor pool holding that set (resolved features: presence, packing, o
 closed enums, JSON names, defaults), so that proto2, proto3 and editions look alike here.
 
 A message's fields, a position, an annotation are read from the descriptors only when the
-differ asks for them.
+differ asks for them: most types of a large file are written the same on both sides, and
+``Message.same_as`` tells so from the descriptors' bytes without reading them field by field.
 """
 from __future__ import annotations
 
@@ -22,6 +23,7 @@ F_MESSAGE, F_ENUM, F_SERVICE = 4, 5, 6
 M_FIELD, M_NESTED, M_ENUM, M_ONEOF = 2, 3, 4, 8
 E_VALUE, S_METHOD = 2, 2
 F_PACKAGE = 2
+TYPE_ENUM = 14  # FieldDescriptorProto.Type
 
 # Extension numbers of linter/data/evolint/annotations.proto (FieldOptions and MessageOptions).
 OPTION_KEYS = {58101: "unit", 58102: "meaning"}
@@ -136,6 +138,27 @@ class Message(_Placed):
                 ann=_annotations(notes.get(field_path), fp), source=source, path=field_path,
             )
         return fields, {k: tuple(v) for k, v in oneofs.items()}
+
+    def same_as(self, other: Message) -> bool:
+        """Whether both sides wrote this type alike, as far as its own descriptors tell.
+
+        Equal bytes of the top-level message holding it (so nested types and inherited
+        features too), the same file syntax, edition and features, and the same annotation
+        comments. The caller checks what lies outside: the types its fields name.
+        """
+        return (self.full_name == other.full_name and self.path[2:] == other.path[2:]
+                and self.top._digest == other.top._digest)
+
+    @cached_property
+    def _digest(self) -> tuple:
+        return (self.source.context, self.proto.SerializeToString(), self.source.notes_under(self.path))
+
+    @cached_property
+    def enum_defaults(self) -> bool:
+        """Whether a field names an enum value as its default (its number comes from the enum)."""
+        if self.source.fdp.syntax == "proto3":  # no explicit defaults in proto3
+            return False
+        return any(fp.type == TYPE_ENUM and fp.HasField("default_value") for fp in self.proto.field)
 
 
 @dataclass(eq=False)

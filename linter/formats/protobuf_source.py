@@ -11,6 +11,8 @@ is read once into a table.
 """
 from __future__ import annotations
 
+from functools import cached_property
+
 from ..model import Location
 
 
@@ -108,3 +110,19 @@ class Source:
                         notes[tuple(entry.path)] = (lead, trail)
             self._notes = notes
         return self._notes
+
+    def notes_under(self, top: tuple) -> tuple:
+        """The comments with an '@' inside one top-level element, by path relative to it."""
+        if self._by_top is None:
+            groups: dict[tuple, list] = {}
+            for path, texts in self.notes().items():
+                groups.setdefault(path[:2], []).append((path[2:], texts))
+            self._by_top = {k: tuple(sorted(v)) for k, v in groups.items()}
+        return self._by_top.get(top, ())
+
+    @cached_property
+    def context(self) -> tuple:
+        """What outside a message's own descriptor resolves its fields: syntax, edition, file features."""
+        fdp = self.fdp
+        features = fdp.options.features.SerializeToString() if fdp.options.HasField("features") else b""
+        return fdp.syntax, fdp.edition, features, fdp.package
