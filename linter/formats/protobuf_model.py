@@ -106,6 +106,10 @@ class Message(_Placed):
         return self._read[1]
 
     @cached_property
+    def by_name(self) -> dict[str, Field]:
+        return {f.name: f for f in self.fields.values()}
+
+    @cached_property
     def _read(self):
         proto, source, path = self.proto, self.source, self.path
         desc = self.pool.FindMessageTypeByName(self.full_name)
