@@ -28,14 +28,16 @@ def run_wall(cmd: list[str], cwd=None) -> float:
     return elapsed
 
 
-def timed(fn, repeat: int) -> float:
-    """Median wall time of ``fn()`` over ``repeat`` calls (seconds)."""
-    times = []
+def timed_pair(fn_a, fn_b, repeat: int) -> tuple[float, float]:
+    """Median wall times of ``fn_a()`` and ``fn_b()``, run alternately ``repeat`` times each,
+    so that a change in the machine's load falls on both sides of a ratio."""
+    times_a, times_b = [], []
     for _ in range(repeat):
-        start = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
+        for fn, times in ((fn_a, times_a), (fn_b, times_b)):
+            start = time.perf_counter()
+            fn()
+            times.append(time.perf_counter() - start)
+    return statistics.median(times_a), statistics.median(times_b)
 
 
 class Verdicts:

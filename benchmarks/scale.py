@@ -3,12 +3,14 @@
 For generated schemas of 1,000, 10,000 and 100,000 fields (Avro, JSON Schema) and a
 5,000-field Protobuf file, compares the total in-process time of a comparison
 (``linter.api.check`` plus the JSON report) with the parse-only floor: reading and
-parsing both files with the same libraries the adapters use, nothing else.
+parsing both files with the same libraries the adapters use, nothing else. Floor and
+total are timed alternately (medians), so a change in the machine's load hits both.
 
 Bounds: total within 2x the floor; 10x the fields in at most 12x the total time.
 
     python benchmarks/scale.py [--formats avro,jsonschema,protobuf] [--sizes 1000,10000,100000]
     python benchmarks/scale.py --profile avro:100000     # cProfile of one comparison
+    python benchmarks/scale.py --formats protobuf --repeat 15   # more runs per median (noisy machine)
 """
 from __future__ import annotations
 
@@ -21,7 +23,7 @@ import tempfile
 from pathlib import Path
 
 import gen
-from common import Verdicts, timed
+from common import Verdicts, timed_pair
 
 SIZES = {"avro": (1000, 10000, 100000), "jsonschema": (1000, 10000, 100000), "protobuf": (500, 5000)}
 
@@ -97,6 +99,7 @@ def main() -> None:
     parser.add_argument("--formats", default="avro,jsonschema,protobuf")
     parser.add_argument("--sizes", help="comma-separated field counts (default per format)")
     parser.add_argument("--profile", metavar="FORMAT:FIELDS")
+    parser.add_argument("--repeat", type=int, help="runs per median (default: 5, 3 or 1 by size)")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
         if args.profile:
@@ -112,8 +115,8 @@ def main() -> None:
             for n in sizes:
                 old, new = gen.write_pair(fmt, n, Path(tmp, fmt))
                 total(old, new)  # warm: imports and the catalogue load once per process
-                floor_s = timed(lambda: FLOORS[fmt](old, new), repeats(n))
-                total_s = timed(lambda: total(old, new), repeats(n))
+                runs = args.repeat or repeats(n)
+                floor_s, total_s = timed_pair(lambda: FLOORS[fmt](old, new), lambda: total(old, new), runs)
                 line = (f"{fmt:<11}{n:>8}{floor_s:>10.3f}{total_s:>10.3f}  "
                         f"{verdicts.check(f'{fmt} {n} vs floor', total_s / floor_s, 2)}")
                 if previous and n == previous[0] * 10:
