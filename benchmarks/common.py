@@ -2,7 +2,6 @@
 from __future__ import annotations
 
 import os
-import statistics
 import subprocess
 import sys
 import time
@@ -28,14 +27,21 @@ def run_wall(cmd: list[str], cwd=None, env=None) -> float:
     return elapsed
 
 
-def timed(fn, repeat: int) -> float:
-    """Median wall time of ``fn()`` over ``repeat`` calls (seconds)."""
-    times = []
+def timed_pair(fn_a, fn_b, repeat: int) -> tuple[float, float]:
+    """Fastest wall times of ``fn_a()`` and ``fn_b()``, run alternately ``repeat`` times
+    each, so that a change in the machine's load falls on both sides of a ratio. On a
+    shared machine the fastest run is the least disturbed one; the collector is emptied
+    before each run, so neither side pays for the other's garbage."""
+    import gc
+
+    times_a, times_b = [], []
     for _ in range(repeat):
-        start = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
+        for fn, times in ((fn_a, times_a), (fn_b, times_b)):
+            gc.collect()
+            start = time.perf_counter()
+            fn()
+            times.append(time.perf_counter() - start)
+    return min(times_a), min(times_b)
 
 
 class Verdicts:

@@ -3,13 +3,15 @@
 For generated schemas of 1,000, 10,000 and 100,000 fields (Avro, JSON Schema) and a
 5,000-field Protobuf file, compares the total in-process time of a comparison
 (``linter.api.check`` plus the JSON report) with the parse-only floor: reading and
-parsing both files with the same libraries the adapters use, nothing else.
+parsing both files with the same libraries the adapters use, nothing else. Floor and
+total are timed alternately, so a change in the machine's load hits both; each figure
+is the fastest of its runs (benchmarks/common.py ``timed_pair``).
 
 Bounds: total within 2x the floor; 10x the fields in at most 12x the total time.
-Each figure is the fastest of several runs, floor and total taken in turn.
 
     python benchmarks/scale.py [--formats avro,jsonschema,protobuf] [--sizes 1000,10000,100000]
     python benchmarks/scale.py --profile avro:100000     # cProfile of one comparison
+    python benchmarks/scale.py --formats protobuf --repeat 15   # more runs per median (noisy machine)
 """
 from __future__ import annotations
 
@@ -19,11 +21,10 @@ import io
 import json
 import sys
 import tempfile
-import time
 from pathlib import Path
 
 import gen
-from common import Verdicts
+from common import Verdicts, timed_pair
 
 SIZES = {"avro": (1000, 10000, 100000), "jsonschema": (1000, 10000, 100000), "protobuf": (500, 5000)}
 
@@ -82,22 +83,6 @@ def repeats(n: int) -> int:
     return 21 if n <= 1000 else 9 if n <= 10000 else 3
 
 
-def side_by_side(floor, total, repeat: int) -> tuple[float, float]:
-    """The fastest of ``repeat`` runs of each, run in turn so that both meet the same
-    machine: on a shared machine the minimum is the least disturbed figure, and taking
-    the two one after another keeps a busy spell from landing on one side only."""
-    import gc
-
-    floors, totals = [], []
-    for _ in range(repeat):
-        for fn, out in ((floor, floors), (total, totals)):
-            gc.collect()  # neither pays for the other's garbage
-            start = time.perf_counter()
-            fn()
-            out.append(time.perf_counter() - start)
-    return min(floors), min(totals)
-
-
 def profile(spec: str, folder: Path) -> None:
     import cProfile
     import pstats
@@ -115,6 +100,7 @@ def main() -> None:
     parser.add_argument("--formats", default="avro,jsonschema,protobuf")
     parser.add_argument("--sizes", help="comma-separated field counts (default per format)")
     parser.add_argument("--profile", metavar="FORMAT:FIELDS")
+    parser.add_argument("--repeat", type=int, help="runs per median (default: 5, 3 or 1 by size)")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
         if args.profile:
@@ -130,8 +116,8 @@ def main() -> None:
             for n in sizes:
                 old, new = gen.write_pair(fmt, n, Path(tmp, fmt))
                 total(old, new)  # warm: imports and the catalogue load once per process
-                floor_s, total_s = side_by_side(lambda: FLOORS[fmt](old, new), lambda: total(old, new),
-                                                repeats(n))
+                runs = args.repeat or repeats(n)
+                floor_s, total_s = timed_pair(lambda: FLOORS[fmt](old, new), lambda: total(old, new), runs)
                 line = (f"{fmt:<11}{n:>8}{floor_s:>10.3f}{total_s:>10.3f}  "
                         f"{verdicts.check(f'{fmt} {n} vs floor', total_s / floor_s, 2)}")
                 if previous and n == previous[0] * 10:

@@ -15,7 +15,8 @@ from . import Options, Schema, read_text
 from .protobuf_compile import Source, compile_set, pool_of
 from .protobuf_diff import KINDS, Side
 from .protobuf_diff import diff as _diff
-from .protobuf_model import build, usage
+from .protobuf_model import build
+from .protobuf_usage import Uses, field_paths
 
 name = "protobuf"
 __all__ = ["name", "KINDS", "load", "load_many", "diff"]
@@ -87,25 +88,22 @@ def _schema(model, source: Source) -> Schema:
         raise InputError("protoc did not report this file", source.display)
     roots = tuple(sorted(m.full_name for m in own.own_messages().values()
                          if m.parent is None and not m.map_entry))
-    _, first = usage(own, list(roots), limit=0)
     return Schema(format=name, file=source.display, roots=roots, fields=_Paths(own, roots),
-                  model=Side(own, roots, first, source.display))
+                  model=Side(own, roots, Uses(own, roots), source.display))
 
 
 class _Paths(Mapping):
-    """Schema.fields, listed on first use: a tree of shared types can have very many paths."""
+    """Schema.fields, each root's paths listed when first asked for (consumer runs only)."""
 
     def __init__(self, model, roots):
-        self._model, self._roots, self._paths = model, roots, None
-
-    def _load(self):
-        if self._paths is None:
-            paths, _ = usage(self._model, list(self._roots))
-            self._paths = {root: frozenset(paths.get(root, ())) for root in self._roots}
-        return self._paths
+        self._model, self._roots, self._known, self._paths = model, roots, frozenset(roots), {}
 
     def __getitem__(self, key):
-        return self._load()[key]
+        if key not in self._known:
+            raise KeyError(key)
+        if key not in self._paths:
+            self._paths[key] = field_paths(self._model, key)
+        return self._paths[key]
 
     def __iter__(self):
         return iter(self._roots)
@@ -114,7 +112,7 @@ class _Paths(Mapping):
         return len(self._roots)
 
     def __reduce__(self):  # crossing to another process: the listed paths, not the model
-        return dict, (dict(self._load()),)
+        return dict, (dict(self.items()),)
 
 
 def diff(old: Schema, new: Schema):

@@ -13,6 +13,7 @@ from .. import semantics
 from ..model import Change, Location
 from .protobuf_model import Enum, Field, Message, Model, Service
 from .protobuf_types import KINDS as TYPE_KINDS, NUMERIC, scalar_change
+from .protobuf_usage import Uses, steps
 
 
 @dataclass
@@ -21,7 +22,7 @@ class Side:
 
     model: Model
     roots: tuple[str, ...]
-    first: dict[str, dict[str, str]]   # type -> root -> shortest path prefix
+    first: Uses   # type -> root -> shortest path prefix
     file: str
 
 
@@ -59,25 +60,38 @@ def _local(full: str, package: str) -> str:
 
 
 def _pair(old: dict, new: dict, shape) -> tuple[list, list, list]:
-    """Pair types: by full name, then by name inside the package, then by a unique shape."""
+    """Pair types: by full name, then by name inside the package, then by a unique shape.
+
+    Indexed by local name and by shape: a package renamed moves every type of the file.
+    """
     pairs = [(old[k], new[k]) for k in sorted(old.keys() & new.keys())]
     left = {k: v for k, v in old.items() if k not in new}
     right = {k: v for k, v in new.items() if k not in old}
+    by_local: dict[str, list] = {}
+    for k, v in right.items():
+        by_local.setdefault(_local(k, v.package), []).append(k)
     for key, item in sorted(left.items()):
-        local = _local(key, item.package)
-        match = [k for k, v in right.items() if _local(k, v.package) == local]
+        match = by_local.get(_local(key, item.package), [])
         if len(match) == 1:
-            pairs.append((item, right.pop(match[0])))
+            pairs.append((item, right.pop(match.pop())))
             left.pop(key)
-    for key, item in sorted(left.items()):
-        signature = shape(item)
-        if not signature:
-            continue
-        match = [k for k, v in right.items() if shape(v) == signature]
-        same = [k for k, v in left.items() if shape(v) == signature]
-        if len(match) == 1 and len(same) == 1:
-            pairs.append((item, right.pop(match[0])))
-            left.pop(key)
+    if left and right:
+        shapes = {id(v): shape(v) for d in (left, right) for v in d.values()}
+        by_shape: dict = {}
+        for k, v in right.items():
+            by_shape.setdefault(shapes[id(v)], []).append(k)
+        unpaired: dict = {}  # shape -> how many OLD types of that shape are still unpaired
+        for v in left.values():
+            unpaired[shapes[id(v)]] = unpaired.get(shapes[id(v)], 0) + 1
+        for key, item in sorted(left.items()):
+            signature = shapes[id(item)]
+            if not signature:
+                continue
+            match = by_shape.get(signature, [])
+            if len(match) == 1 and unpaired[signature] == 1:
+                pairs.append((item, right.pop(match.pop())))
+                left.pop(key)
+                unpaired[signature] = 0
     return pairs, sorted(left.values(), key=lambda t: t.full_name), sorted(right.values(), key=lambda t: t.full_name)
 
 
@@ -122,11 +136,14 @@ class Differ:
             self.changes.append(Change(kind, schema, path, old, new, old_loc, new_loc,
                                        {"type": type_name, **facts}))
 
-    def annotations(self, type_name: str, leaf: str | None, old_ann, new_ann, old_loc, new_loc, **types):
-        """Unit and meaning changes; ``types`` passes a field's message annotations (a unit is inherited)."""
+    def annotations(self, type_name: str, leaf: str | None, old, new, **types):
+        """Unit and meaning changes of a paired message or field (``old``, ``new``); ``types``
+        passes a field's message annotations (a unit is inherited)."""
+        if old.ann == new.ann and types.get("old_type") == types.get("new_type"):
+            return  # equal annotations, inherited or not, change nothing
         for schema, prefix in self.targets(type_name):
             path = ".".join(p for p in (prefix, leaf) if p)
-            self.changes.extend(semantics.annotation_changes(schema, path, old_ann, new_ann, old_loc, new_loc,
+            self.changes.extend(semantics.annotation_changes(schema, path, old.ann, new.ann, old.loc, new.loc,
                                                              **types))
 
     # -- the walk ---------------------------------------------------------------------------
@@ -140,8 +157,10 @@ class Differ:
         enum_pairs, enums_removed, enums_added = _pair(o.own_enums(), n.own_enums(), _enum_shape)
         for a, b in pairs + enum_pairs:
             self.renamed[a.full_name] = b.full_name
+        self.moved = {k for k, v in self.renamed.items() if k != v}
         for a, b in pairs:
-            self.message(a, b)
+            if not self.unchanged(a, b):
+                self.message(a, b)
         for m in removed:
             kind = "protobuf-message-removed" if m.parent is None else "protobuf-nested-message-removed"
             self.emit(kind, m.full_name, None, m.loc, None, old=m.full_name,
@@ -185,13 +204,13 @@ class Differ:
             # Within one file pair a package move is the file's package change (reported once).
             self.emit("protobuf-message-renamed", name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
                       old_name=a.full_name, new_name=b.full_name)
-        self.annotations(name, None, a.ann, b.ann, a.loc, b.loc)
+        self.annotations(name, None, a, b)
         pairs = []
         left = dict(a.fields)
         right = dict(b.fields)
         # A name kept with its type but given another number is that field renumbered (fields
         # that swapped numbers are two renumberings, not two reuses); otherwise pair by number.
-        new_by_name = {g.name: g for g in b.fields.values()}
+        new_by_name = b.by_name
         moved = [(f, new_by_name[f.name]) for f in a.fields.values()
                  if f.name in new_by_name and new_by_name[f.name].number != f.number
                  and scalar_change(f.type, new_by_name[f.name].type) is None
@@ -202,9 +221,8 @@ class Differ:
             if number not in renumbered and number not in taken:
                 pairs.append((left.pop(number), right.pop(number)))
         for number, f in sorted(left.items()):
-            match = [g for g in right.values() if g.name == f.name]
-            if match:
-                g = match[0]
+            g = new_by_name.get(f.name)  # names are unique within a message
+            if g is not None and right.get(g.number) is g:
                 right.pop(g.number)
                 left.pop(number)
                 same = scalar_change(f.type, g.type) is None and self._same_type(f, g)
@@ -221,6 +239,20 @@ class Differ:
         for f, g in pairs:
             self.field(a, b, f, g)
         self.oneofs(a, b, pairs)
+
+    def unchanged(self, a: Message, b: Message) -> bool:
+        """A pair written alike, naming types that kept their names: nothing to report.
+
+        Checked on the descriptors' bytes, before any field is read. An enum value as a
+        default is left to the field walk: its number comes from the enum.
+        """
+        if not a.same_as(b) or a.enum_defaults:
+            return False
+        if self.moved:
+            for _, reached, _ in steps(self.old.model, a.full_name):
+                if any(t in self.moved for t in reached):
+                    return False
+        return True
 
     def _same_type(self, f: Field, g: Field) -> bool:
         if f.type_name is None or g.type_name is None:
@@ -259,8 +291,9 @@ class Differ:
         om, nm = self.old.model, self.new.model
         base = dict(field=f.name, number=f.number)
         if f.name != g.name:
-            moved_elsewhere = any(x.name == f.name for x in b.fields.values() if x.number != f.number) or \
-                any(x.name == g.name for x in a.fields.values() if x.number != g.number)
+            elsewhere_new, elsewhere_old = b.by_name.get(f.name), a.by_name.get(g.name)
+            moved_elsewhere = (elsewhere_new is not None and elsewhere_new.number != f.number) or \
+                (elsewhere_old is not None and elsewhere_old.number != g.number)
             if moved_elsewhere or scalar_change(f.type, g.type) or not self._same_type(f, g):
                 self.emit("protobuf-field-number-reused", name, leaf, f.loc, g.loc, old=f.name, new=g.name,
                           number=f.number, old_name=f.name, new_name=g.name,
@@ -280,7 +313,7 @@ class Differ:
         if f.is_map and g.is_map:
             self.map_entries(a, f, g)
         self.cardinality(name, leaf, f, g, base, types)
-        self.annotations(name, leaf, f.ann, g.ann, f.loc, g.loc, old_type=a.ann, new_type=b.ann)
+        self.annotations(name, leaf, f, g, old_type=a.ann, new_type=b.ann)
 
     def type_change(self, f: Field, g: Field) -> str | None:
         if f.is_map != g.is_map:
@@ -395,6 +428,9 @@ class Differ:
 
     def enum(self, a: Enum, b: Enum):
         name = a.full_name
+        if (a.full_name == b.full_name and a.closed == b.closed
+                and [(v.name, v.number) for v in a.values] == [(v.name, v.number) for v in b.values]):
+            return  # the same values, the same way open or closed: nothing to report
         if a.full_name != b.full_name and not self.moved_with_package(a, b):
             self.emit("protobuf-enum-renamed", name, None, a.loc, b.loc, old=a.full_name, new=b.full_name,
                       old_name=a.full_name, new_name=b.full_name)
@@ -410,11 +446,12 @@ class Differ:
                       old_number=old_names[k].number, new_number=new_names[k].number)
         old_numbers = {v.number for v in a.values}
         new_numbers = {v.number for v in b.values}
+        old_at, new_at = _by_number(a), _by_number(b)
         for number in sorted(old_numbers | new_numbers):
-            before = [x for x in a.names_of(number) if x not in renumbered]
-            after = [x for x in b.names_of(number) if x not in renumbered]
-            loc_a = next((v.loc for v in a.values if v.number == number), a.loc)
-            loc_b = next((v.loc for v in b.values if v.number == number), b.loc)
+            before = [v.name for v in old_at.get(number, ()) if v.name not in renumbered]
+            after = [v.name for v in new_at.get(number, ()) if v.name not in renumbered]
+            loc_a = old_at[number][0].loc if number in old_at else a.loc
+            loc_b = new_at[number][0].loc if number in new_at else b.loc
             facts = dict(enum=a.full_name, number=number)
             if before and not after and number not in new_numbers:
                 kind = "protobuf-closed-enum-value-removed" if b.closed else "protobuf-enum-value-removed"
@@ -483,6 +520,14 @@ class Differ:
             if (m.client_streaming, m.server_streaming) != (x.client_streaming, x.server_streaming):
                 change("protobuf-method-streaming-changed", k, m.loc, x.loc, _streaming(m), _streaming(x),
                        method=k, old_streaming=_streaming(m), new_streaming=_streaming(x))
+
+
+def _by_number(e: Enum) -> dict[int, list]:
+    """An enum's values by number, aliases in declaration order."""
+    out: dict[int, list] = {}
+    for v in e.values:
+        out.setdefault(v.number, []).append(v)
+    return out
 
 
 def _streaming(m) -> str:

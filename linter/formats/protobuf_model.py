@@ -3,20 +3,27 @@
 Built from protoc's FileDescriptorSet (names, declaration order, comments, positions) and
 from a descriptor pool holding that set (resolved features: presence, packing, open or
 closed enums, JSON names, defaults), so that proto2, proto3 and editions look alike here.
+
+A message's fields, a position, an annotation are read from the descriptors only when the
+differ asks for them: most types of a large file are written the same on both sides, and
+``Message.same_as`` tells so from the descriptors' bytes without reading them field by field.
 """
 from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field
+from functools import cached_property
 from typing import Any
 
 from ..model import Location
+from .protobuf_source import Source
 
 # Field numbers in descriptor.proto, used to find an element's entry in SourceCodeInfo.
 F_MESSAGE, F_ENUM, F_SERVICE = 4, 5, 6
 M_FIELD, M_NESTED, M_ENUM, M_ONEOF = 2, 3, 4, 8
 E_VALUE, S_METHOD = 2, 2
 F_PACKAGE = 2
+TYPE_ENUM = 14  # FieldDescriptorProto.Type
 
 # Extension numbers of linter/data/evolint/annotations.proto (FieldOptions and MessageOptions).
 OPTION_KEYS = {58101: "unit", 58102: "meaning"}
@@ -27,8 +34,19 @@ NAMING_OPTIONS = ("java_package", "java_outer_classname", "java_multiple_files",
                   "php_metadata_namespace", "ruby_package", "swift_prefix")
 
 
-@dataclass
-class Field:
+class _Placed:
+    """An element whose position is looked up only when a change to it is reported."""
+
+    source: Source
+    path: tuple
+
+    @property
+    def loc(self) -> Location:
+        return self.source.loc(self.path)
+
+
+@dataclass(eq=False)
+class Field(_Placed):
     name: str
     number: int
     type: str                 # "int32", "string", "message", "enum", "group", ...
@@ -41,51 +59,133 @@ class Field:
     default: Any
     has_default: bool
     is_map: bool
-    loc: Location
     ann: dict
+    source: Source = field(repr=False)
+    path: tuple = field(repr=False)
 
 
-@dataclass
-class Message:
-    full_name: str
-    name: str
-    file: str
-    package: str
-    parent: str | None
-    loc: Location
-    fields: dict[int, Field]
-    oneofs: dict[str, tuple[int, ...]]
-    reserved_numbers: tuple[tuple[int, int], ...]   # inclusive ranges
-    reserved_names: frozenset[str]
-    map_entry: bool
-    ann: dict
-    own: bool                 # defined in a compared file, not an import
+class Message(_Placed):
+    """A message type. Names are read up front; fields, oneofs, reserved ranges, position and
+    annotations on first use (``_read``)."""
+
+    def __init__(self, full_name: str, name: str, parent: str | None, own: bool, proto, path: tuple,
+                 source: Source, pool, top: Message | None):
+        self.full_name, self.name, self.parent, self.own = full_name, name, parent, own
+        self.file, self.package = source.fdp.name, source.fdp.package
+        self.proto, self.path, self.source, self.pool = proto, path, source, pool
+        self.top = top or self  # the top-level message holding this one (itself if top-level)
+        self.map_entry = proto.options.map_entry
 
     def reserves(self, number: int | None = None, name: str | None = None) -> bool:
         if number is not None:
             return any(lo <= number <= hi for lo, hi in self.reserved_numbers)
         return name in self.reserved_names
 
+    @cached_property
+    def loc(self) -> Location:
+        return self.source.loc(self.path)
 
-@dataclass
-class EnumValue:
+    @cached_property
+    def ann(self) -> dict:
+        return _annotations(self.source.notes().get(self.path), self.proto)
+
+    @cached_property
+    def reserved_numbers(self) -> tuple[tuple[int, int], ...]:   # inclusive ranges
+        return tuple((r.start, r.end - 1) for r in self.proto.reserved_range)  # end is exclusive
+
+    @cached_property
+    def reserved_names(self) -> frozenset[str]:
+        return frozenset(self.proto.reserved_name)
+
+    @property
+    def fields(self) -> dict[int, Field]:
+        return self._read[0]
+
+    @property
+    def oneofs(self) -> dict[str, tuple[int, ...]]:
+        return self._read[1]
+
+    @cached_property
+    def by_name(self) -> dict[str, Field]:
+        return {f.name: f for f in self.fields.values()}
+
+    @cached_property
+    def _read(self):
+        proto, source, path = self.proto, self.source, self.path
+        desc = self.pool.FindMessageTypeByName(self.full_name)
+        notes = source.notes()
+        oneof_names = [o.name for o in proto.oneof_decl]
+        fields = {}
+        oneofs: dict[str, list[int]] = {}
+        for j, fp in enumerate(proto.field):
+            fd = desc.fields_by_number[fp.number]
+            real_oneof = (oneof_names[fp.oneof_index]
+                          if fp.HasField("oneof_index") and not fp.proto3_optional else None)
+            if real_oneof:
+                oneofs.setdefault(real_oneof, []).append(fp.number)
+            type_name = None
+            is_map = False
+            if fd.message_type is not None:
+                type_name = fd.message_type.full_name
+                is_map = fd.message_type.GetOptions().map_entry
+            elif fd.enum_type is not None:
+                type_name = fd.enum_type.full_name
+            label = "required" if fd.is_required else "repeated" if fd.is_repeated else "optional"
+            field_path = path + (M_FIELD, j)
+            fields[fp.number] = Field(
+                name=fp.name, number=fp.number,
+                type=_type_name(fd.type), type_name=type_name, label=label,
+                presence=fd.has_presence, packed=bool(fd.is_repeated and fd.is_packed),
+                oneof=real_oneof, json_name=fd.json_name,
+                default=fd.default_value if label != "repeated" and fd.message_type is None else None,
+                has_default=fd.has_default_value, is_map=is_map,
+                ann=_annotations(notes.get(field_path), fp), source=source, path=field_path,
+            )
+        return fields, {k: tuple(v) for k, v in oneofs.items()}
+
+    def same_as(self, other: Message) -> bool:
+        """Whether both sides wrote this type alike, as far as its own descriptors tell.
+
+        Equal bytes of the top-level message holding it (so nested types and inherited
+        features too), the same file syntax, edition and features, and the same annotation
+        comments. The caller checks what lies outside: the types its fields name.
+        """
+        return (self.full_name == other.full_name and self.path[2:] == other.path[2:]
+                and self.top._digest == other.top._digest)
+
+    @cached_property
+    def _digest(self) -> tuple:
+        return (self.source.context, self.proto.SerializeToString(), self.source.notes_under(self.path))
+
+    @cached_property
+    def enum_defaults(self) -> bool:
+        """Whether a field names an enum value as its default (its number comes from the enum)."""
+        if self.source.fdp.syntax == "proto3":  # no explicit defaults in proto3
+            return False
+        return any(fp.type == TYPE_ENUM and fp.HasField("default_value") for fp in self.proto.field)
+
+
+@dataclass(eq=False)
+class EnumValue(_Placed):
     name: str
     number: int
-    loc: Location
+    source: Source = field(repr=False)
+    path: tuple = field(repr=False)
 
 
-@dataclass
-class Enum:
+@dataclass(eq=False)
+class Enum(_Placed):
     full_name: str
     name: str
     file: str
     package: str
-    loc: Location
     values: tuple[EnumValue, ...]
     closed: bool
     reserved_numbers: tuple[tuple[int, int], ...]
     reserved_names: frozenset[str]
     own: bool
+    source: Source = field(repr=False)
+    path: tuple = field(repr=False)
 
     def names_of(self, number: int) -> list[str]:
         return [v.name for v in self.values if v.number == number]
@@ -94,24 +194,26 @@ class Enum:
         return next((v.number for v in self.values if v.name == name), None)
 
 
-@dataclass
-class Method:
+@dataclass(eq=False)
+class Method(_Placed):
     name: str
     input: str
     output: str
     client_streaming: bool
     server_streaming: bool
-    loc: Location
+    source: Source = field(repr=False)
+    path: tuple = field(repr=False)
 
 
-@dataclass
-class Service:
+@dataclass(eq=False)
+class Service(_Placed):
     full_name: str
     name: str
     file: str
     package: str
-    loc: Location
     methods: dict[str, Method]
+    source: Source = field(repr=False)
+    path: tuple = field(repr=False)
 
 
 @dataclass
@@ -120,9 +222,16 @@ class FileInfo:
     display: str
     package: str
     syntax: str
-    loc: Location
-    package_loc: Location
     options: dict[str, Any]
+    source: Source = field(repr=False)
+
+    @property
+    def loc(self) -> Location:
+        return Location(self.display, 1, 1)
+
+    @property
+    def package_loc(self) -> Location:
+        return self.source.loc((F_PACKAGE,)) if self.package else Location(self.display, 1, 1)
 
 
 @dataclass
@@ -133,7 +242,7 @@ class Model:
     services: dict[str, Service] = field(default_factory=dict)  # own files only
     # The files whose types are compared; None: every file that is not an import.
     compared: frozenset[str] | None = None
-    # Caches shared by the per-file views of one side (indexes, field steps).
+    # Caches shared by the per-file views of one side (indexes, field steps, walks).
     shared: dict = field(default_factory=dict)
 
     def _mine(self, item) -> bool:
@@ -161,57 +270,51 @@ def _annotations_in(comment: str) -> dict:
     return out
 
 
-def _annotations(info, options) -> dict:
+def _annotations(texts: tuple[str, str] | None, proto) -> dict:
     """Unit and meaning from the element's comments and evolint's custom options."""
-    from google.protobuf.unknown_fields import UnknownFieldSet
-
     out = {}
-    if info is not None:
-        out.update(_annotations_in(info.leading_comments))
-        for key, value in _annotations_in(info.trailing_comments).items():
+    if texts is not None:
+        lead, trail = texts
+        out.update(_annotations_in(lead))
+        for key, value in _annotations_in(trail).items():
             out.setdefault(key, value)
-    for item in UnknownFieldSet(options):
-        key = OPTION_KEYS.get(item.field_number)
-        if key and isinstance(item.data, bytes):
-            out[key] = item.data.decode("utf-8", errors="replace").strip()  # an option beats a comment
+    if proto.HasField("options"):
+        from google.protobuf.unknown_fields import UnknownFieldSet
+
+        for item in UnknownFieldSet(proto.options):
+            key = OPTION_KEYS.get(item.field_number)
+            if key and isinstance(item.data, bytes):
+                out[key] = item.data.decode("utf-8", errors="replace").strip()  # an option beats a comment
     return out
 
 
 class _Builder:
     def __init__(self, pool, fdp, display: str, own: bool, model: Model):
-        self.pool, self.fdp, self.display, self.own, self.model = pool, fdp, display, own, model
-        self.where = {tuple(loc.path): loc for loc in fdp.source_code_info.location}
-
-    def loc(self, path: tuple) -> Location:
-        info = self.where.get(path)
-        if info is None or not info.span:
-            return Location(self.display)
-        return Location(self.display, info.span[0] + 1, info.span[1] + 1)
+        self.pool, self.fdp, self.own, self.model = pool, fdp, own, model
+        self.source = Source(fdp, display)
 
     def build(self):
         fdp = self.fdp
         package = fdp.package
         prefix = f"{package}." if package else ""
         for i, proto in enumerate(fdp.message_type):
-            self.message(proto, prefix + proto.name, None, (F_MESSAGE, i))
+            self.message(proto, prefix + proto.name, None, (F_MESSAGE, i), None)
         for i, proto in enumerate(fdp.enum_type):
             self.enum(proto, prefix + proto.name, (F_ENUM, i))
         if not self.own:
             return
+        source = self.source
         for i, proto in enumerate(fdp.service):
             path = (F_SERVICE, i)
             methods = {}
             for j, m in enumerate(proto.method):
                 methods[m.name] = Method(m.name, m.input_type.lstrip("."), m.output_type.lstrip("."),
-                                         m.client_streaming, m.server_streaming,
-                                         self.loc(path + (S_METHOD, j)))
+                                         m.client_streaming, m.server_streaming, source, path + (S_METHOD, j))
             full = prefix + proto.name
-            self.model.services[full] = Service(full, proto.name, fdp.name, package, self.loc(path), methods)
+            self.model.services[full] = Service(full, proto.name, fdp.name, package, methods, source, path)
         options = {name: getattr(fdp.options, name) for name in NAMING_OPTIONS
                    if fdp.options.HasField(name)}
-        package_loc = self.loc((F_PACKAGE,)) if package else Location(self.display, 1, 1)
-        self.model.files[fdp.name] = FileInfo(fdp.name, self.display, package, self._syntax(),
-                                              Location(self.display, 1, 1), package_loc, options)
+        self.model.files[fdp.name] = FileInfo(fdp.name, source.display, package, self._syntax(), options, source)
 
     def _syntax(self) -> str:
         fdp = self.fdp
@@ -221,56 +324,22 @@ class _Builder:
             return f"edition {descriptor_pb2.Edition.Name(fdp.edition)}"
         return fdp.syntax or "proto2"
 
-    def message(self, proto, full: str, parent: str | None, path: tuple):
-        desc = self.pool.FindMessageTypeByName(full)
-        oneof_names = [o.name for o in proto.oneof_decl]
-        fields = {}
-        oneofs: dict[str, list[int]] = {}
-        for j, fp in enumerate(proto.field):
-            fd = desc.fields_by_number[fp.number]
-            real_oneof = (oneof_names[fp.oneof_index]
-                          if fp.HasField("oneof_index") and not fp.proto3_optional else None)
-            if real_oneof:
-                oneofs.setdefault(real_oneof, []).append(fp.number)
-            type_name = None
-            is_map = False
-            if fd.message_type is not None:
-                type_name = fd.message_type.full_name
-                is_map = fd.message_type.GetOptions().map_entry
-            elif fd.enum_type is not None:
-                type_name = fd.enum_type.full_name
-            label = "required" if fd.is_required else "repeated" if fd.is_repeated else "optional"
-            info = self.where.get(path + (M_FIELD, j))
-            fields[fp.number] = Field(
-                name=fp.name, number=fp.number,
-                type=_type_name(fd.type), type_name=type_name, label=label,
-                presence=fd.has_presence, packed=bool(fd.is_repeated and fd.is_packed),
-                oneof=real_oneof, json_name=fd.json_name,
-                default=fd.default_value if label != "repeated" and fd.message_type is None else None,
-                has_default=fd.has_default_value, is_map=is_map,
-                loc=self.loc(path + (M_FIELD, j)), ann=_annotations(info, fp.options),
-            )
-        reserved = tuple((r.start, r.end - 1) for r in proto.reserved_range)  # end is exclusive
-        self.model.messages[full] = Message(
-            full_name=full, name=proto.name, file=self.fdp.name, package=self.fdp.package,
-            parent=parent, loc=self.loc(path), fields=fields,
-            oneofs={k: tuple(v) for k, v in oneofs.items()}, reserved_numbers=reserved,
-            reserved_names=frozenset(proto.reserved_name), map_entry=proto.options.map_entry,
-            ann=_annotations(self.where.get(path), proto.options), own=self.own,
-        )
+    def message(self, proto, full: str, parent: str | None, path: tuple, top: Message | None):
+        message = Message(full, proto.name, parent, self.own, proto, path, self.source, self.pool, top)
+        self.model.messages[full] = message
         for j, nested in enumerate(proto.nested_type):
-            self.message(nested, f"{full}.{nested.name}", full, path + (M_NESTED, j))
+            self.message(nested, f"{full}.{nested.name}", full, path + (M_NESTED, j), message.top)
         for j, nested in enumerate(proto.enum_type):
             self.enum(nested, f"{full}.{nested.name}", path + (M_ENUM, j))
 
     def enum(self, proto, full: str, path: tuple):
         desc = self.pool.FindEnumTypeByName(full)
-        values = tuple(EnumValue(v.name, v.number, self.loc(path + (E_VALUE, j)))
-                       for j, v in enumerate(proto.value))
+        source = self.source
+        values = tuple(EnumValue(v.name, v.number, source, path + (E_VALUE, j)) for j, v in enumerate(proto.value))
         reserved = tuple((r.start, r.end) for r in proto.reserved_range)  # end is inclusive here
-        self.model.enums[full] = Enum(full, proto.name, self.fdp.name, self.fdp.package,
-                                      self.loc(path), values, bool(desc.is_closed), reserved,
-                                      frozenset(proto.reserved_name), self.own)
+        self.model.enums[full] = Enum(full, proto.name, self.fdp.name, self.fdp.package, values,
+                                      bool(desc.is_closed), reserved, frozenset(proto.reserved_name), self.own,
+                                      source, path)
 
 
 _TYPES: dict[int, str] = {}
@@ -292,58 +361,3 @@ def build(fds, pool, displays: dict[str, str]) -> Model:
         own = fdp.name in displays
         _Builder(pool, fdp, displays.get(fdp.name, fdp.name), own, model).build()
     return model
-
-
-def _targets(model: Model, f: Field):
-    """The types a field leads to: its own, and for a map the entry and the value's type."""
-    if not f.is_map:
-        return [f.type_name] if f.type_name else [], f.type_name
-    entry = model.messages.get(f.type_name)
-    value = entry.fields.get(2) if entry else None
-    inner = value.type_name if value else None
-    return [t for t in (f.type_name, inner) if t], inner
-
-
-def usage(model: Model, roots: list[str], limit: int = 2000):
-    """For each root: its dotted field paths, and the shortest path at which each type is used.
-
-    Maps are transparent (a map of messages continues into the value's fields). Types are
-    visited once per root for the shortest paths; the list of all paths stops at recursion
-    and at ``limit`` paths per root (a tree of shared types can have exponentially many).
-    """
-    paths: dict[str, set[str]] = {}
-    first: dict[str, dict[str, str]] = {}   # type full name -> root -> prefix
-    steps = model.shared.setdefault("steps", {})
-
-    def fields_of(type_name: str) -> list:
-        """(field name, types reached, type descended into) per field, in number order; cached."""
-        if type_name not in steps:
-            message = model.messages.get(type_name)
-            steps[type_name] = [(f.name, *_targets(model, f))
-                                for f in sorted(message.fields.values(), key=lambda f: f.number)] if message else []
-        return steps[type_name]
-
-    for root in roots:
-        first.setdefault(root, {})[root] = ""
-        seen = {root}
-        queue = [(root, "")]
-        while queue:
-            type_name, prefix = queue.pop(0)
-            for name, reached, inner in fields_of(type_name):
-                path = f"{prefix}.{name}" if prefix else name
-                for target in reached:
-                    first.setdefault(target, {}).setdefault(root, path)
-                if inner and inner not in seen and inner in model.messages:
-                    seen.add(inner)
-                    queue.append((inner, path))
-        found: set[str] = set()
-        stack = [(root, "", (root,))]
-        while stack and len(found) < limit:
-            type_name, prefix, way = stack.pop()
-            for name, _, inner in fields_of(type_name):
-                path = f"{prefix}.{name}" if prefix else name
-                found.add(path)
-                if inner and inner in model.messages and inner not in way:
-                    stack.append((inner, path, way + (inner,)))
-        paths[root] = found
-    return paths, first
