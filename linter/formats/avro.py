@@ -10,8 +10,9 @@ Avro specification 1.12.0, "Schema Resolution".
 from __future__ import annotations
 
 import copy
+from collections import Counter
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from ..collector import collector_paused
@@ -20,7 +21,7 @@ from ..model import Change, Location
 from ..semantics import annotation_changes
 from ..sourcemap import SourceMap
 from . import Options, Schema, parse_json, read_text
-from .avro_resolve import first_match, promotable, resolve
+from .avro_resolve import Branches, promotable, resolve
 from .avro_schema import PRIMITIVES, Field, Model, Node, parse
 
 name = "avro"
@@ -230,6 +231,12 @@ class _Differ:
         self.old, self.new = old, new
         self.changes: list[Change] = []
         self.active: set[tuple[int, int]] = set()
+        # What each pair of records reported below its own level, by (id, id), with the
+        # path it was found at: a type used at many paths (a chain of records, each
+        # holding the one before) is walked once and its findings repeated under each
+        # path, instead of walked again at every use (quadratic in the chain's length).
+        self.below: dict[tuple[int, int], tuple[str, list[Change]]] = {}
+        self.cuts = 0  # times the recursion guard cut a walk short
 
     def emit(self, kind: str, ctx: Ctx, old=None, new=None, **facts) -> None:
         self.changes.append(Change(kind, ctx.schema, ctx.path, old, new, ctx.old_loc, ctx.new_loc, facts))
@@ -244,6 +251,7 @@ class _Differ:
             ctx = Ctx(ctx.schema, ctx.path, ctx._old, ctx._new)
         key = (id(o), id(n))
         if key in self.active:  # recursive types: this pair is being compared further up
+            self.cuts += 1
             return
         self.active.add(key)
         try:
@@ -288,6 +296,26 @@ class _Differ:
         if o.annotations != n.annotations:  # equal (stripped) annotations report nothing
             self.changes.extend(annotation_changes(ctx.schema, ctx.path, o.annotations, n.annotations,
                                                    ctx.old_loc, ctx.new_loc))
+        key = (id(o), id(n))
+        known = self.below.get(key)
+        if known is not None:
+            self.repeat(known, ctx)
+            return
+        first, cuts = len(self.changes), self.cuts
+        self.fields(o, n, ctx)
+        if self.cuts == cuts:  # a walk the recursion guard cut short holds for its place only
+            self.below[key] = (ctx.path, self.changes[first:])
+
+    def repeat(self, known: tuple[str, list[Change]], ctx: Ctx) -> None:
+        path, changes = known
+        for c in changes:
+            rest = c.path[len(path):]
+            if path and rest:
+                rest = rest[1:]  # the dot after the old prefix
+            where = f"{ctx.path}.{rest}" if ctx.path and rest else (ctx.path or rest)
+            self.changes.append(replace(c, schema=ctx.schema, path=where))
+
+    def fields(self, o: Node, n: Node, ctx: Ctx) -> None:
         pairs, old_left, new_left = _pair_fields(o, n)
         for of, nf in pairs:
             # A field written the same on both sides with a primitive type named by a string
@@ -408,18 +436,22 @@ class _Differ:
         """
         old_b = o.branches if o.kind == "union" else [o]
         new_b = n.branches if n.kind == "union" else [n]
-        into_new = [first_match(b, new_b) for b in old_b]   # backward: OLD writes, NEW reads
-        into_old = [first_match(c, old_b) for c in new_b]   # forward: NEW writes, OLD reads
-        mutual = [(i, new_b.index(t)) for i, t in enumerate(into_new)
-                  if t is not None and into_old[new_b.index(t)] is old_b[i]]
+        in_old, in_new = Branches(old_b), Branches(new_b)
+        into_new = [in_new.first_match(b) for b in old_b]   # backward: OLD writes, NEW reads
+        into_old = [in_old.first_match(c) for c in new_b]   # forward: NEW writes, OLD reads
+        mutual = [(i, in_new.index(t)) for i, t in enumerate(into_new)
+                  if t is not None and into_old[in_new.index(t)] is old_b[i]]
         # A primitive branch retyped by promotion ([null, int] -> [null, long]): OLD reads
         # into it, nothing of OLD reads it back; reported as the type change it is.
+        readers_of = Counter(id(t) for t in into_new if t is not None)
+        paired = set(mutual)
         for i, t in enumerate(into_new):
             if t is None or t.kind not in PRIMITIVES or old_b[i].kind not in PRIMITIVES:
                 continue
-            j = new_b.index(t)
-            if into_old[j] is None and sum(x is t for x in into_new) == 1 and (i, j) not in mutual:
+            j = in_new.index(t)
+            if into_old[j] is None and readers_of[id(t)] == 1 and (i, j) not in paired:
                 mutual.append((i, j))
+                paired.add((i, j))
         paired_old = {i for i, _ in mutual}
         paired_new = {j for _, j in mutual}
         for i, b in enumerate(old_b):

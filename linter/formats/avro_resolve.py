@@ -65,6 +65,40 @@ def first_match(writer: Node, readers) -> Node | None:
     return next((r for r in readers if matches(writer, r)), None)
 
 
+class Branches:
+    """A union's branches, with each writer's first match found through an index.
+
+    A named writer can only match a named reader of its short name or one listing its
+    full name as an alias; an unnamed one only an unnamed reader (named kinds promote to
+    nothing). Scanning every branch for every branch made a union of 10,000 records
+    quadratic (tests/test_safety.py, the chain of types).
+    """
+
+    def __init__(self, readers: list[Node]):
+        self.readers = readers
+        self.position = {id(r): i for i, r in enumerate(readers)}
+        self.named: dict[tuple[str, str], list[int]] = {}
+        self.unnamed: list[int] = []
+        for i, r in enumerate(readers):
+            if r.named:
+                self.named.setdefault(("short", r.short), []).append(i)
+                for alias in r.aliases:
+                    self.named.setdefault(("alias", alias), []).append(i)
+            else:
+                self.unnamed.append(i)
+
+    def first_match(self, writer: Node) -> Node | None:
+        if writer.named:
+            candidates = self.named.get(("short", writer.short), []) + self.named.get(("alias", writer.name), [])
+        else:
+            candidates = self.unnamed
+        best = min((i for i in candidates if matches(writer, self.readers[i])), default=None)
+        return None if best is None else self.readers[best]
+
+    def index(self, reader: Node) -> int:
+        return self.position[id(reader)]
+
+
 def resolve(writer: Node, reader: Node) -> list[Mismatch]:
     out: list[Mismatch] = []
     _resolve(writer, reader, "", out, set())
