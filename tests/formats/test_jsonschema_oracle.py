@@ -247,7 +247,10 @@ def test_combined_mutations_are_judged_soundly(names, data):
     # and each direction called compatible must still accept every generated instance.
     mutated = BASE
     for name in names:
-        mutated = MUTATIONS[name](mutated)
+        try:
+            mutated = MUTATIONS[name](mutated)
+        except (KeyError, IndexError):
+            assume(False)  # an earlier mutation removed what this one edits
     backward, forward = _verdict_of(BASE, mutated)
     for ok, src, dst in ((backward, BASE, mutated), (forward, mutated, BASE)):
         strat = strategy(src)
