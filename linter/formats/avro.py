@@ -12,7 +12,7 @@ from __future__ import annotations
 import copy
 from collections import Counter
 from collections.abc import Mapping
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from ..collector import collector_paused
@@ -56,10 +56,35 @@ class Loaded:
     model: Model
     file: str
     sourcemap: SourceMap
+    _twins: dict | None = field(default=None, init=False, repr=False)
 
     def loc(self, raw) -> Location:
-        line = self.sourcemap.line_of(raw) if isinstance(raw, (dict, list)) else None
+        if not isinstance(raw, (dict, list)):
+            return Location(self.file, None)
+        line = self.sourcemap.line_of(raw)
+        if line is None and self.model.adopted:
+            twin = self.twins().get(id(raw))
+            line = self.sourcemap.line_of(twin) if twin is not None else None
         return Location(self.file, line)
+
+    def twins(self) -> dict:
+        """This file's object for each of OLD's objects inside a shared record.
+
+        Built on the first miss only: a shared record is passed over unless a type moved
+        to a place where OLD had another (then its fields are compared, and located here).
+        The two objects of a pair are equal JSON, so they are walked side by side.
+        """
+        if self._twins is None:
+            twins = {}
+            stack = list(self.model.adopted)
+            while stack:
+                a, b = stack.pop()
+                twins[id(a)] = b
+                # Equal dicts may list their keys in another order: pair by key.
+                pairs = ((x, b[k]) for k, x in a.items()) if isinstance(a, dict) else zip(a, b)
+                stack.extend((x, y) for x, y in pairs if isinstance(x, (dict, list)))
+            self._twins = twins
+        return self._twins
 
 
 def load(path: Path, display: str, options: Options | None = None) -> Schema:

@@ -131,6 +131,9 @@ class Model:
     ignored_logical: list = field(default_factory=list)
     # Named types in order of definition.
     defined: list = field(default_factory=list)
+    # (OLD's object, this file's object) for each record shared with OLD: the nodes hold
+    # OLD's objects, and a location asked for one is looked up at its twin here.
+    adopted: list = field(default_factory=list)
 
 
 def annotations_of(obj: dict) -> dict:
@@ -146,6 +149,7 @@ class _Parser:
         self.locate = locate
         self.previous = previous
         self.defined: list[Node] = []
+        self.adopted: list[tuple[dict, dict]] = []
         self.names: dict[str, Node] = {}
         self.ignored_logical: list = []
         # A type named by a bare string ("long") has no attributes of its own: one shared
@@ -292,6 +296,7 @@ class _Parser:
         held = self.previous.defined[before.span[0]:before.span[1]]
         if any(n.name in self.names for n in held):
             return None
+        self.adopted.append((before.raw, obj))
         for n in held:
             self.names[n.name] = n
             self.order[id(n)] = len(self.order)
@@ -483,4 +488,4 @@ def parse(data, display: str, locate, previous: Model | None = None) -> Model:
     parser = _Parser(display, locate, previous)
     root = parser.parse(data, None, data if isinstance(data, (dict, list)) else None)
     return Model(root=root, names=parser.names, ignored_logical=parser.ignored_logical,
-                 defined=parser.defined)
+                 defined=parser.defined, adopted=parser.adopted)
