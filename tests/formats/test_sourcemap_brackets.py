@@ -27,6 +27,20 @@ def test_lines_and_columns_count_from_the_text(doc, indent):
     assert where == (dumped.count("\n", 0, offset) + 1, offset - (dumped.rfind("\n", 0, offset) + 1) + 1)
 
 
+def _mapped(doc, indent):
+    """The text of ``doc``, its built source map, and every container of its parse."""
+    dumped = json.dumps(doc, indent=indent or None)
+    tree = json.loads(dumped)
+    smap = SourceMap(dumped, tree)
+    smap._build()
+    containers, stack = [], [tree]
+    while stack:
+        node = stack.pop()
+        containers.append(node)
+        stack.extend(c for c in (node.values() if isinstance(node, dict) else node) if isinstance(c, (dict, list)))
+    return dumped, smap, containers
+
+
 plain_text = st.text(alphabet='ab"\\\n\u00e9:,', max_size=10)
 plain_docs = st.recursive(plain_text | st.integers(), lambda kids: st.lists(kids, max_size=4)
                           | st.dictionaries(plain_text, kids, max_size=4), max_leaves=20)
@@ -37,15 +51,7 @@ def test_every_container_decodes_from_its_position(doc, indent):
     # Checked against the standard library's decoder: the text at each container's
     # offset decodes to that container. Strings without brackets take the counting
     # path of SourceMap._build, the others the string-skipping pattern.
-    dumped = json.dumps({"first": doc}, indent=indent or None)
-    tree = json.loads(dumped)
-    smap = SourceMap(dumped, tree)
-    smap._build()
-    containers, stack = [], [tree]
-    while stack:
-        node = stack.pop()
-        containers.append(node)
-        stack.extend(c for c in (node.values() if isinstance(node, dict) else node) if isinstance(c, (dict, list)))
+    dumped, smap, containers = _mapped({"first": doc}, indent)
     decoder = json.JSONDecoder()
     for node in containers:
         assert decoder.raw_decode(dumped, smap._positions[id(node)])[0] == node
@@ -55,15 +61,7 @@ def test_every_container_decodes_from_its_position(doc, indent):
 def test_lines_and_columns_of_every_container_in_any_order(doc, indent, rnd):
     # Line numbers are counted from marks left by earlier lookups: asking in any order
     # gives what counting from the start of the text gives.
-    dumped = json.dumps({"first": doc, "second": [doc]}, indent=indent or None)
-    tree = json.loads(dumped)
-    smap = SourceMap(dumped, tree)
-    smap._build()
-    containers, stack = [], [tree]
-    while stack:
-        node = stack.pop()
-        containers.append(node)
-        stack.extend(c for c in (node.values() if isinstance(node, dict) else node) if isinstance(c, (dict, list)))
+    dumped, smap, containers = _mapped({"first": doc, "second": [doc]}, indent)
     rnd.shuffle(containers)
     for node in containers:
         line, column = smap.locate(node)
