@@ -26,7 +26,7 @@ _BRACKETS = re.compile(r'(?:[^"{\[]++|(?>' + _STRING + r'))*+(?:([{\[])|\Z)')
 _SPACE = re.compile(r"\s*")
 
 
-def _preorder(tree) -> list[int]:
+def preorder(tree) -> list[int]:
     """Ids of the containers of a parsed JSON tree, in document (pre)order.
 
     Iterative, so deep documents do not hit the recursion limit; a stack of iterators
@@ -71,15 +71,32 @@ class SourceMap:
         self._text = text
         self._tree = tree
         self._positions: dict[int, int] | None = None
+        # The containers' ids in preorder, when the caller's own walk listed them
+        # (``known_preorder``); entries may be None for containers never located.
+        self._preorder: list | None = None
         # (offset, line, offset of that line's start), sorted by offset: each line number
         # is counted from the nearest mark before it. Splitting a large file into lines
         # up front cost more than the rest of the map (benchmarks/scale.py).
         self._marks: list[tuple[int, int, int]] = [(0, 0, 0)]
 
+    def known_preorder(self, order: list) -> None:
+        """Use ``order`` (what ``preorder(tree)`` would list) instead of walking the tree."""
+        self._preorder, self._positions = order, None
+
+    def walk_fully(self) -> None:
+        """Forget a given preorder with gaps: the next lookup walks the tree itself."""
+        if self._preorder is not None:
+            self._preorder, self._positions = None, None
+
     def _build(self) -> None:
         text = self._text
-        order = _preorder(self._tree)
-        if text.count("{") + text.count("[") == len(order):
+        brackets = text.count("{") + text.count("[")
+        order = self._preorder
+        if order is None or len(order) != brackets:
+            # No list given, or one the text's brackets do not confirm (brackets inside
+            # strings, or a miscount): the tree's own walk decides.
+            order = preorder(self._tree)
+        if brackets == len(order):
             # As many brackets as containers: none is inside a string, so the k-th bracket
             # is the k-th container, found without the string pattern (a quarter of its
             # time on large files, benchmarks/scale.py).

@@ -64,7 +64,9 @@ class Loaded:
         line = self.sourcemap.line_of(raw)
         if line is None and self.model.adopted:
             twin = self.twins().get(id(raw))
-            line = self.sourcemap.line_of(twin) if twin is not None else None
+            if twin is not None:
+                self.sourcemap.walk_fully()  # the parse listed a shared record's objects as gaps
+                line = self.sourcemap.line_of(twin)
         return Location(self.file, line)
 
     def twins(self) -> dict:
@@ -104,6 +106,7 @@ def _load(path: Path, display: str, previous: Model | None = None) -> Schema:
     sourcemap = SourceMap(text, data)
     try:
         model = parse(data, display, sourcemap.locate, previous)
+        sourcemap.known_preorder(model.preorder)
         _fastavro_gate(data, model, display)
         roots = root_names(model.root, display)
     except RecursionError:

@@ -12,10 +12,12 @@ Named types are shared: every reference to ``utility.metering.Site`` is the same
 from __future__ import annotations
 
 import math
+from itertools import repeat
 from dataclasses import dataclass, field
 from typing import Any
 
 from ..errors import InputError
+from ..sourcemap import preorder as _containers
 
 PRIMITIVES = ("null", "boolean", "int", "long", "float", "double", "bytes", "string")
 NAMED = ("record", "error", "enum", "fixed")
@@ -87,6 +89,7 @@ class Node:
     # by the gate; a NEW schema reuses such a record of OLD's written the same.
     outside_refs: bool = True
     span: tuple[int, int] | None = None
+    extent: int | None = None  # records: how many JSON containers the definition holds
     _by_name: Any = field(default=None, init=False, repr=False)
 
     @property
@@ -134,6 +137,8 @@ class Model:
     # (OLD's object, this file's object) for each record shared with OLD: the nodes hold
     # OLD's objects, and a location asked for one is looked up at its twin here.
     adopted: list = field(default_factory=list)
+    # Ids of the file's JSON containers in document preorder (None where not needed).
+    preorder: list = field(default_factory=list)
 
 
 def annotations_of(obj: dict) -> dict:
@@ -150,6 +155,11 @@ class _Parser:
         self.previous = previous
         self.defined: list[Node] = []
         self.adopted: list[tuple[dict, dict]] = []
+        # Ids of the JSON containers in document preorder, as the walk meets them: the
+        # source map's own preorder walk then need not run (linter/sourcemap.py). Each
+        # container is entered once, and the values the walk does not read as types are
+        # listed in their key order around the one it does (``around``).
+        self.preorder: list = []
         self.names: dict[str, Node] = {}
         self.ignored_logical: list = []
         # A type named by a bare string ("long") has no attributes of its own: one shared
@@ -200,27 +210,46 @@ class _Parser:
         kind = obj.get("type")
         if isinstance(kind, (dict, list)):
             # {"type": {...}} or {"type": [...]}: a wrapper around a schema
-            return self.parse(kind, namespace, obj)
+            self.preorder.append(id(obj))
+            return self.around(obj, "type", lambda: self.parse(kind, namespace, obj))
         if not isinstance(kind, str):
             self.fail("a schema object needs a 'type'", obj)
+        if kind in NAMED:
+            return self.named(obj, kind, namespace)
+        self.preorder.append(id(obj))
         if kind in PRIMITIVES:
             node = Node(kind=kind, raw=obj)
             self.logical(node, obj)
+            self.around(obj, None)
             return node
-        if kind in NAMED:
-            return self.named(obj, kind, namespace)
         if kind == "array":
             if "items" not in obj:
                 self.fail("an array needs 'items'", obj)
-            return Node(kind="array", items=self.parse(obj["items"], namespace, obj), raw=obj)
+            return Node(kind="array", items=self.around(obj, "items", lambda: self.parse(obj["items"], namespace, obj)),
+                        raw=obj)
         if kind == "map":
             if "values" not in obj:
                 self.fail("a map needs 'values'", obj)
-            return Node(kind="map", items=self.parse(obj["values"], namespace, obj), raw=obj)
-        return self.reference(kind, namespace, obj)
+            return Node(kind="map", items=self.around(obj, "values", lambda: self.parse(obj["values"], namespace, obj)),
+                        raw=obj)
+        node = self.reference(kind, namespace, obj)
+        self.around(obj, None)
+        return node
+
+    def around(self, obj: dict, key, parse=None):
+        """Parse ``obj[key]`` with ``parse``, listing the other values' containers in
+        preorder before and after it, as their keys come."""
+        result = None
+        for k, value in obj.items():
+            if k == key:
+                result = parse()
+            elif value.__class__ is dict or value.__class__ is list:
+                self.preorder.extend(_containers(value))
+        return result
 
     def union(self, items: list, namespace: str | None) -> Node:
         node = Node(kind="union", raw=items)
+        self.preorder.append(id(items))
         seen: dict[str, int] = {}
         for item in items:
             branch = self.parse(item, namespace, items)
@@ -238,6 +267,8 @@ class _Parser:
 
     def named(self, obj: dict, kind: str, namespace: str | None) -> Node:
         kind = "record" if kind == "error" else kind
+        start = len(self.preorder)
+        self.preorder.append(id(obj))
         ns_attr = obj.get("namespace")
         if ns_attr is not None and not isinstance(ns_attr, str):
             self.fail("'namespace' must be a string", obj)
@@ -250,6 +281,12 @@ class _Parser:
         if kind == "record" and self.previous is not None:
             adopted = self.adopt(full, obj)
             if adopted is not None:
+                # Its containers are never located in this file (the nodes hold OLD's
+                # objects): only their number counts, unless a twin is asked for.
+                if adopted.extent is None:
+                    self.preorder.extend(_containers(obj)[1:])
+                else:
+                    self.preorder.extend(repeat(None, adopted.extent - 1))
                 return adopted
         aliases = obj.get("aliases", [])
         if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
@@ -264,9 +301,12 @@ class _Parser:
             self.open.append([seq])
             ignored = len(self.ignored_logical)
             try:
-                self.record_fields(node, obj, own_ns)
+                if "fields" not in obj:
+                    self.fail(f"record '{node.name}' needs a 'fields' list", obj)
+                self.around(obj, "fields", lambda: self.record_fields(node, obj, own_ns))
             finally:
                 low = self.open.pop()[0]
+            node.extent = len(self.preorder) - start
             node.outside_refs = low < seq
             if not node.outside_refs and len(self.ignored_logical) == ignored:
                 node.span = (seq, len(self.defined))
@@ -274,12 +314,14 @@ class _Parser:
                 self.open[-1][0] = min(self.open[-1][0], low)
         elif kind == "enum":
             self.enum(node, obj)
+            self.around(obj, None)
         else:
             size = obj.get("size")
             if not isinstance(size, int) or isinstance(size, bool) or size < 0:
                 self.fail(f"fixed '{full}' needs a 'size' that is a non-negative integer", obj)
             node.size = size
             self.logical(node, obj)
+            self.around(obj, None)
         return node
 
     def adopt(self, full: str, obj: dict) -> Node | None:
@@ -312,9 +354,12 @@ class _Parser:
         seen = set()
         out = node.fields
         primitives = self.primitives
+        preorder = self.preorder
+        preorder.append(id(fields))
         for position, raw in enumerate(fields):
             if not isinstance(raw, dict):
                 self.fail(f"a field of record '{node.name}' must be an object", fields)
+            preorder.append(id(raw))
             name = raw.get("name")
             if not isinstance(name, str) or not (name.isascii() and name.isidentifier()):
                 self.fail(f"field name {name!r} of record '{node.name}' is not a valid Avro name", raw)
@@ -325,16 +370,15 @@ class _Parser:
             if ftype is _MISSING:
                 self.fail(f"field '{name}' needs a 'type'", raw)
             size = len(raw)
-            if size == 2 or (size == 3 and "doc" in raw):
+            doc = raw.get("doc")
+            if (size == 2 or (size == 3 and doc is not None)) and (doc is None or doc.__class__ is str):
                 # Nothing but a name, a type and a doc: no aliases, order, default or
-                # annotations to check or copy.
+                # annotations to check or copy, and no container but the type's.
                 if isinstance(ftype, str) and ftype in primitives:
                     ftype = primitives[ftype]
                 else:
                     ftype = self.parse(ftype, namespace, raw)
-                doc = raw.get("doc")
-                out.append(Field(name, ftype, position, False, None, (), "ascending",
-                                 doc if isinstance(doc, str) else None, _NO_ANNOTATIONS, raw))
+                out.append(Field(name, ftype, position, False, None, (), "ascending", doc, _NO_ANNOTATIONS, raw))
                 continue
             aliases = raw.get("aliases", ())
             if aliases:
@@ -350,9 +394,9 @@ class _Parser:
                 self.fail(f"field '{name}' order must be ascending, descending or ignore, not {order!r}", raw)
             if isinstance(ftype, str) and ftype in primitives:
                 ftype = primitives[ftype]
+                self.around(raw, None)
             else:
-                ftype = self.parse(ftype, namespace, raw)
-            doc = raw.get("doc")
+                ftype = self.around(raw, "type", lambda: self.parse(ftype, namespace, raw))
             has_default = "default" in raw
             f = Field(name, ftype, position, has_default, raw.get("default"), aliases, order,
                       doc if isinstance(doc, str) else None, annotations_of(raw), raw)
@@ -488,4 +532,4 @@ def parse(data, display: str, locate, previous: Model | None = None) -> Model:
     parser = _Parser(display, locate, previous)
     root = parser.parse(data, None, data if isinstance(data, (dict, list)) else None)
     return Model(root=root, names=parser.names, ignored_logical=parser.ignored_logical,
-                 defined=parser.defined, adopted=parser.adopted)
+                 defined=parser.defined, adopted=parser.adopted, preorder=parser.preorder)
