@@ -10,6 +10,7 @@ from pathlib import Path
 from typing import Any, Callable, Iterable
 
 from . import __version__, catalogue, engine
+from .collector import collector_paused
 from .errors import InputError, UsageError
 from .formats import EXTENSIONS, Options, Schema, adapter, detect, read_text
 from .model import MODES, Change, Comparison, Compat, Finding, Location, meet_all
@@ -141,6 +142,17 @@ def compare_one(pair: Pair, policy: engine.Policy, format: str | None, options: 
         raise InputError(f"format changed from {fmt_old} to {fmt_new}; compare files of one format",
                          pair.new_display)
     module = adapter(fmt_old)
+    if not getattr(module, "pause_collector", False):
+        return _compare_loaded(module, pair, policy, cat, fmt_old, options, old_options, preloaded)
+    # An adapter that builds large graphs of live objects asks for one pause around both
+    # loads and the diff: the collector then looks at what survives once, not after each
+    # step (Avro, 10,000 fields: 3.6% fewer instructions, benchmarks/instructions.py).
+    with collector_paused():
+        return _compare_loaded(module, pair, policy, cat, fmt_old, options, old_options, preloaded)
+
+
+def _compare_loaded(module, pair: Pair, policy: engine.Policy, cat, fmt_old: str, options: Options,
+                    old_options: Options | None, preloaded: dict[str, Schema]) -> Comparison:
     try:
         display = pair.old_display
         old_schema = preloaded.get(display) or module.load(pair.old, display, old_options or options)

@@ -12,8 +12,8 @@ def collector_paused():
     The walks allocate hundreds of thousands of long-lived objects, so the collector's
     generational passes found almost nothing to free and took about half the time on a
     100,000-field schema (benchmarks/scale.py). Nested pauses are free; the collector is
-    restored as it was, even on error. (One pause around a whole comparison instead of one
-    per load and diff measured no better: what is alive on resuming is looked at anyway.)
+    restored as it was, even on error. An adapter may ask for one pause around a whole
+    comparison (``pause_collector``, linter/api.py), so that what survives is looked at once.
     """
     was_enabled = gc.isenabled()
     gc.disable()

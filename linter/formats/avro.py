@@ -25,6 +25,7 @@ from .avro_resolve import Branches, promotable, resolve
 from .avro_schema import PRIMITIVES, Field, Model, Node, parse
 
 name = "avro"
+pause_collector = True  # api.compare_one: one collector pause around both loads and the diff
 
 # Promotions that keep every value exactly; the others round large numbers.
 LOSSLESS = {("int", "long"), ("int", "double"), ("float", "double")}
