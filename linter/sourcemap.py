@@ -5,7 +5,7 @@ could is several times slower. Instead: the decoder builds containers in documen
 order, so a preorder walk of the parsed tree meets them in the order their opening
 brackets appear in the text, and the k-th container met is the k-th bracket. When the
 text holds exactly as many brackets as the tree holds containers, no string holds one
-and splitting the text finds them; otherwise one regular-expression pass lists the
+and a search for the two characters finds them; otherwise one regular-expression pass lists the
 brackets outside strings. A reader that already walked the tree in that order may hand
 its list over (``known_preorder``); the map is built only when a location is first asked
 for.

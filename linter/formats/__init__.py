@@ -9,7 +9,8 @@ import importlib
 import json
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Mapping, Protocol
+from collections.abc import Mapping
+from typing import Any, Protocol
 
 from ..errors import InputError
 from ..model import Change
@@ -45,6 +46,35 @@ class Schema:
     roots: tuple[str, ...]
     fields: Mapping[str, frozenset[str]]
     model: Any = None
+
+
+class LazyPaths(Mapping):
+    """``Schema.fields``, each root's paths listed by ``paths_of(root)`` when first asked
+    for (consumer runs only).
+
+    Types that nest each other (a chain of records or messages, each holding the one
+    before) give every root all the paths below it: listing them all up front is
+    quadratic. Pickled as the plain dict of all paths, not the model behind them.
+    """
+
+    def __init__(self, roots: tuple[str, ...], paths_of):
+        self._roots, self._known, self._paths_of, self._paths = roots, frozenset(roots), paths_of, {}
+
+    def __getitem__(self, root: str) -> frozenset[str]:
+        if root not in self._known:
+            raise KeyError(root)
+        if root not in self._paths:
+            self._paths[root] = frozenset(self._paths_of(root))
+        return self._paths[root]
+
+    def __iter__(self):
+        return iter(self._roots)
+
+    def __len__(self):
+        return len(self._roots)
+
+    def __reduce__(self):  # crossing to another process: the listed paths, not the model
+        return dict, (dict(self.items()),)
 
 
 class Format(Protocol):

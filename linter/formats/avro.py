@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import copy
 from collections import Counter
-from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
@@ -20,7 +19,7 @@ from ..errors import InputError
 from ..model import Change, Location
 from ..semantics import annotation_changes
 from ..sourcemap import SourceMap
-from . import Options, Schema, parse_json, read_text
+from . import LazyPaths, Options, Schema, parse_json, read_text
 from .avro_resolve import Branches, promotable, resolve
 from .avro_schema import PRIMITIVES, Field, Model, Node, parse
 
@@ -112,35 +111,11 @@ def _load(path: Path, display: str, previous: Model | None = None) -> Schema:
         roots = root_names(model.root, display)
     except RecursionError:
         raise InputError("schema nested too deeply to read", display) from None
-    return Schema("avro", display, roots, _Paths(model, roots), Loaded(model, display, sourcemap))
+    def paths_of(root: str) -> list[str]:
+        node = model.names.get(root)
+        return field_paths(node) if node is not None else []
 
-
-class _Paths(Mapping):
-    """Schema.fields, each root's paths listed when first asked for (consumer runs only).
-
-    Types that nest each other (a chain of records, each holding the previous one) give
-    every root all the paths below it: listing them all up front is quadratic.
-    """
-
-    def __init__(self, model: Model, roots: tuple[str, ...]):
-        self._model, self._roots, self._paths = model, roots, {}
-
-    def __getitem__(self, root: str) -> frozenset[str]:
-        if root not in self._roots:
-            raise KeyError(root)
-        if root not in self._paths:
-            node = self._model.names.get(root)
-            self._paths[root] = frozenset(field_paths(node)) if node is not None else frozenset()
-        return self._paths[root]
-
-    def __iter__(self):
-        return iter(self._roots)
-
-    def __len__(self):
-        return len(self._roots)
-
-    def __reduce__(self):  # crossing to another process: the listed paths, not the model
-        return dict, (dict(self.items()),)
+    return Schema("avro", display, roots, LazyPaths(roots, paths_of), Loaded(model, display, sourcemap))
 
 
 def _fastavro_gate(data, model: Model, display: str) -> None:
@@ -337,12 +312,9 @@ class _Differ:
 
     def repeat(self, known: tuple[str, list[Change]], ctx: Ctx) -> None:
         path, changes = known
-        for c in changes:
-            rest = c.path[len(path):]
-            if path and rest:
-                rest = rest[1:]  # the dot after the old prefix
-            where = f"{ctx.path}.{rest}" if ctx.path and rest else (ctx.path or rest)
-            self.changes.append(replace(c, schema=ctx.schema, path=where))
+        for c in changes:  # each lies below the record: its path continues the record's
+            rest = c.path[len(path) + 1:] if path else c.path
+            self.changes.append(replace(c, schema=ctx.schema, path=f"{ctx.path}.{rest}" if ctx.path else rest))
 
     def fields(self, o: Node, n: Node, ctx: Ctx) -> None:
         pairs, old_left, new_left = _pair_fields(o, n)

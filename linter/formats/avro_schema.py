@@ -283,10 +283,7 @@ class _Parser:
             if adopted is not None:
                 # Its containers are never located in this file (the nodes hold OLD's
                 # objects): only their number counts, unless a twin is asked for.
-                if adopted.extent is None:
-                    self.preorder.extend(_containers(obj)[1:])
-                else:
-                    self.preorder.extend(repeat(None, adopted.extent - 1))
+                self.preorder.extend(repeat(None, adopted.extent - 1))
                 return adopted
         aliases = obj.get("aliases", [])
         if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):

@@ -6,12 +6,11 @@ each side gets its own descriptor pool, since OLD and NEW define the same full n
 from __future__ import annotations
 
 import re
-from collections.abc import Mapping
 from pathlib import Path
 from typing import Iterable
 
 from ..errors import InputError
-from . import Options, Schema, read_text
+from . import LazyPaths, Options, Schema, read_text
 from .protobuf_compile import Source, compile_set, pool_of
 from .protobuf_diff import KINDS, Side
 from .protobuf_diff import diff as _diff
@@ -88,31 +87,8 @@ def _schema(model, source: Source) -> Schema:
         raise InputError("protoc did not report this file", source.display)
     roots = tuple(sorted(m.full_name for m in own.own_messages().values()
                          if m.parent is None and not m.map_entry))
-    return Schema(format=name, file=source.display, roots=roots, fields=_Paths(own, roots),
+    return Schema(format=name, file=source.display, roots=roots, fields=LazyPaths(roots, lambda root: field_paths(own, root)),
                   model=Side(own, roots, Uses(own, roots), source.display))
-
-
-class _Paths(Mapping):
-    """Schema.fields, each root's paths listed when first asked for (consumer runs only)."""
-
-    def __init__(self, model, roots):
-        self._model, self._roots, self._known, self._paths = model, roots, frozenset(roots), {}
-
-    def __getitem__(self, key):
-        if key not in self._known:
-            raise KeyError(key)
-        if key not in self._paths:
-            self._paths[key] = field_paths(self._model, key)
-        return self._paths[key]
-
-    def __iter__(self):
-        return iter(self._roots)
-
-    def __len__(self):
-        return len(self._roots)
-
-    def __reduce__(self):  # crossing to another process: the listed paths, not the model
-        return dict, (dict(self.items()),)
 
 
 def diff(old: Schema, new: Schema):
