@@ -92,18 +92,18 @@ class SourceMap:
 
     def _build(self) -> None:
         text = self._text
-        brackets = text.count("{") + text.count("[")
+        # Every bracket's offset, strings not minded: their number is the check below.
+        offsets = _find_all(text, "{[")
         order = self._preorder
-        if order is None or len(order) != brackets:
+        if order is None or len(order) != len(offsets):
             # No list given, or one the text's brackets do not confirm (brackets inside
             # strings, or a miscount): the tree's own walk decides.
             order = preorder(self._tree)
-        if brackets == len(order):
-            # As many brackets as containers: none is inside a string, so the k-th bracket
-            # is the k-th container, found without the string pattern (a quarter of its
-            # time on large files, benchmarks/scale.py).
-            offsets = _find_all(text, "{[")
-        else:
+        if len(offsets) != len(order):
+            # More brackets than containers: some are inside strings, so the k-th bracket
+            # is found by the pattern that passes over strings. (As many: none is inside
+            # a string, and the plain search found them, a quarter of the pattern's time
+            # on large files, benchmarks/scale.py.)
             offsets = [s for s in map(operator.methodcaller("start", 1), _BRACKETS.finditer(text)) if s >= 0]
         # Duplicate keys discard containers the text still holds: positions would drift,
         # so give none rather than wrong ones. (The count check above cannot tell those

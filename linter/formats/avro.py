@@ -56,6 +56,7 @@ class Loaded:
     model: Model
     file: str
     sourcemap: SourceMap
+    gated: dict = field(default_factory=dict)  # fastavro's parse of each named type
     _twins: dict | None = field(default=None, init=False, repr=False)
 
     def loc(self, raw) -> Location:
@@ -97,17 +98,17 @@ def load(path: Path, display: str, options: Options | None = None) -> Schema:
 def load_beside(path: Path, display: str, options: Options | None, old: Schema) -> Schema:
     """NEW read beside OLD: records written the same in both share OLD's nodes."""
     with collector_paused():
-        return _load(path, display, old.model.model if isinstance(old.model, Loaded) else None)
+        return _load(path, display, old.model if isinstance(old.model, Loaded) else None)
 
 
-def _load(path: Path, display: str, previous: Model | None = None) -> Schema:
+def _load(path: Path, display: str, previous: Loaded | None = None) -> Schema:
     text = read_text(Path(path), display)
     data = parse_json(text, display)
     sourcemap = SourceMap(text, data)
     try:
-        model = parse(data, display, sourcemap.locate, previous)
+        model = parse(data, display, sourcemap.locate, previous.model if previous else None)
         sourcemap.known_preorder(model.preorder)
-        _fastavro_gate(data, model, display)
+        gated = _fastavro_gate(data, model, display, previous)
         roots = root_names(model.root, display)
     except RecursionError:
         raise InputError("schema nested too deeply to read", display) from None
@@ -115,33 +116,60 @@ def _load(path: Path, display: str, previous: Model | None = None) -> Schema:
         node = model.names.get(root)
         return field_paths(node) if node is not None else []
 
-    return Schema("avro", display, roots, LazyPaths(roots, paths_of), Loaded(model, display, sourcemap))
+    return Schema("avro", display, roots, LazyPaths(roots, paths_of), Loaded(model, display, sourcemap, gated))
 
 
-def _fastavro_gate(data, model: Model, display: str) -> None:
+def _fastavro_gate(data, model: Model, display: str, previous: Loaded | None) -> dict:
     """What our own walk accepts, fastavro must parse too; it names its own reason.
 
-    fastavro rejects invalid logical types (a decimal whose scale exceeds its precision),
-    where the specification says to ignore them: those are taken out of its copy.
+    Returns the named types fastavro parsed, by full name. fastavro rejects invalid
+    logical types (a decimal whose scale exceeds its precision), where the specification
+    says to ignore them: those are taken out of its copy. A record NEW shares with OLD
+    (written the same, naming nothing outside itself, so read the same in either file)
+    was parsed by fastavro in OLD already: NEW's copy names it instead, and fastavro is
+    handed OLD's parse of it (``named_schemas``, its documented way to pass types parsed
+    before). That halves the gate's work on a large schema with a few edits
+    (benchmarks/scale.py); our own walk has already refused any name defined twice or
+    used before its definition, the only verdicts a name in place of a definition could
+    change.
     """
     from fastavro import parse_schema
 
+    known: dict = {}
+    shared = model.shared if previous is not None else {}
+    if shared:
+        known.update((n, previous.gated[n]) for n in model.shared_names)
     checked = data
-    if model.ignored_logical:
-        # Copy only to take logical types out; fastavro 1.13 leaves its input as it was
-        # (checked on every Avro file in tests/ and schemas_example/), and the copy cost
-        # more than fastavro's own parse on large schemas (benchmarks/scale.py).
-        memo: dict = {}
-        checked = copy.deepcopy(data, memo)
-        for obj in model.ignored_logical:
-            memo[id(obj)].pop("logicalType", None)
+    if model.ignored_logical or shared:
+        # Copy only to take logical types out or put names in; fastavro 1.13 leaves its
+        # input as it was (checked on every Avro file in tests/ and schemas_example/),
+        # and a whole copy cost more than fastavro's own parse on large schemas.
+        checked = _gate_copy(data, shared, {id(obj) for obj in model.ignored_logical})
     try:
-        parse_schema(checked, _write_hint=False)
+        parse_schema(checked, known, _write_hint=False)
     except RecursionError:
         raise
     except Exception as exc:  # noqa: BLE001 - fastavro raises many types; all mean bad input
         reason = " ".join(str(exc).split()) or type(exc).__name__
         raise InputError(f"not a valid Avro schema: {reason}", display) from None
+    return known
+
+
+def _gate_copy(value, shared: dict, ignored: set):
+    """``value`` with each shared record replaced by its full name and each ignored
+    logical type left out; only the containers on the way are copied."""
+    cls = value.__class__
+    if cls is dict:
+        name = shared.get(id(value))
+        if name is not None:
+            return name
+        out = {k: _gate_copy(v, shared, ignored) for k, v in value.items()}
+        if id(value) in ignored:
+            out.pop("logicalType", None)
+        return out
+    if cls is list:
+        return [_gate_copy(v, shared, ignored) for v in value]
+    return value
 
 
 def root_names(root: Node, display: str) -> tuple[str, ...]:

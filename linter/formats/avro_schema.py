@@ -137,6 +137,10 @@ class Model:
     # (OLD's object, this file's object) for each record shared with OLD: the nodes hold
     # OLD's objects, and a location asked for one is looked up at its twin here.
     adopted: list = field(default_factory=list)
+    # The full name of each shared record, by the id of this file's object, and all the
+    # names the shared records define (themselves first, then what they hold).
+    shared: dict = field(default_factory=dict)
+    shared_names: list = field(default_factory=list)
     # Ids of the file's JSON containers in document preorder (None where not needed).
     preorder: list = field(default_factory=list)
 
@@ -155,6 +159,8 @@ class _Parser:
         self.previous = previous
         self.defined: list[Node] = []
         self.adopted: list[tuple[dict, dict]] = []
+        self.shared: dict[int, str] = {}
+        self.shared_names: list[str] = []
         # Ids of the JSON containers in document preorder, as the walk meets them: the
         # source map's own preorder walk then need not run (linter/sourcemap.py). Each
         # container is entered once, and the values the walk does not read as types are
@@ -170,6 +176,7 @@ class _Parser:
         # below its own (everything it defines comes after it).
         self.order: dict[int, int] = {}
         self.open: list[list[int]] = []
+        self.valid_namespaces: set[str] = set()
 
     def fail(self, message: str, obj=None):
         where = self.locate(obj) if isinstance(obj, (dict, list)) else None
@@ -179,12 +186,18 @@ class _Parser:
         if not isinstance(name, str) or not name:
             self.fail("a named type needs a 'name' that is a non-empty string", obj)
         if "." in name:
-            full = name
+            full, parts = name, name.split(".")
+        elif namespace:
+            # A namespace is checked once, not for every type it holds.
+            full = f"{namespace}.{name}"
+            parts = (name,) if namespace in self.valid_namespaces else full.split(".")
         else:
-            full = f"{namespace}.{name}" if namespace else name
-        for part in full.split("."):
+            full, parts = name, (name,)
+        for part in parts:
             if not (part.isascii() and part.isidentifier()):
                 self.fail(f"'{full}' is not a valid Avro name (letters, digits and '_', not starting with a digit)", obj)
+        if namespace and "." not in name:
+            self.valid_namespaces.add(namespace)
         return full
 
     def reference(self, name: str, namespace: str | None, where) -> Node:
@@ -201,11 +214,15 @@ class _Parser:
         self.fail(f"unknown type name '{name}'" + (f" (looked for '{candidates[0]}')" if candidates[0] != name else ""), where)
 
     def parse(self, obj, namespace: str | None, where=None) -> Node:
-        if isinstance(obj, str):
+        if obj.__class__ is dict:  # the usual case first: a record in a field
+            kind = obj.get("type")
+            if kind.__class__ is str and kind in NAMED:
+                return self.named(obj, kind, namespace)
+        elif isinstance(obj, str):
             return self.reference(obj, namespace, where)
-        if isinstance(obj, list):
+        elif isinstance(obj, list):
             return self.union(obj, namespace)
-        if not isinstance(obj, dict):
+        elif not isinstance(obj, dict):
             self.fail(f"a schema is a type name, an object or a union list, not {obj!r}", where)
         kind = obj.get("type")
         if isinstance(kind, (dict, list)):
@@ -285,30 +302,41 @@ class _Parser:
                 # objects): only their number counts, unless a twin is asked for.
                 self.preorder.extend(repeat(None, adopted.extent - 1))
                 return adopted
-        aliases = obj.get("aliases", [])
-        if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
+        aliases = obj.get("aliases", _MISSING)
+        if aliases is _MISSING:
+            aliases = ()
+        elif isinstance(aliases, list) and all(isinstance(a, str) for a in aliases):
+            aliases = tuple(self.full_name(a, own_ns, obj) for a in aliases)
+        else:
             self.fail(f"aliases of '{full}' must be a list of names", obj)
-        node = Node(kind=kind, name=full, raw=obj, doc=_doc(obj),
-                    aliases=tuple(self.full_name(a, own_ns, obj) for a in aliases),
-                    annotations=annotations_of(obj))
+        doc = obj.get("doc")
+        node = Node(kind, full, aliases, doc=doc if doc.__class__ is str else None,
+                    annotations=annotations_of(obj), raw=obj)
         self.names[full] = node  # before the body: a record may refer to itself
         seq = self.order[id(node)] = len(self.order)
         self.defined.append(node)
         if kind == "record":
-            self.open.append([seq])
+            if "fields" not in obj:
+                self.fail(f"record '{node.name}' needs a 'fields' list", obj)
+            opened = [seq]
+            self.open.append(opened)
             ignored = len(self.ignored_logical)
-            try:
-                if "fields" not in obj:
-                    self.fail(f"record '{node.name}' needs a 'fields' list", obj)
-                self.around(obj, "fields", lambda: self.record_fields(node, obj, own_ns))
-            finally:
-                low = self.open.pop()[0]
-            node.extent = len(self.preorder) - start
+            preorder = self.preorder
+            # The fields, and in key order around them any other value's containers
+            # (``around``, written out: this runs once per record of both files).
+            for k, value in obj.items():
+                if k == "fields":
+                    self.record_fields(node, obj, own_ns)
+                elif value.__class__ is dict or value.__class__ is list:
+                    preorder.extend(_containers(value))
+            self.open.pop()
+            low = opened[0]
+            node.extent = len(preorder) - start
             node.outside_refs = low < seq
             if not node.outside_refs and len(self.ignored_logical) == ignored:
                 node.span = (seq, len(self.defined))
-            if self.open:
-                self.open[-1][0] = min(self.open[-1][0], low)
+            if self.open and low < self.open[-1][0]:
+                self.open[-1][0] = low
         elif kind == "enum":
             self.enum(node, obj)
             self.around(obj, None)
@@ -336,7 +364,9 @@ class _Parser:
         if any(n.name in self.names for n in held):
             return None
         self.adopted.append((before.raw, obj))
+        self.shared[id(obj)] = full
         for n in held:
+            self.shared_names.append(n.name)
             self.names[n.name] = n
             self.order[id(n)] = len(self.order)
             self.defined.append(n)
@@ -529,4 +559,6 @@ def parse(data, display: str, locate, previous: Model | None = None) -> Model:
     parser = _Parser(display, locate, previous)
     root = parser.parse(data, None, data if isinstance(data, (dict, list)) else None)
     return Model(root=root, names=parser.names, ignored_logical=parser.ignored_logical,
-                 defined=parser.defined, adopted=parser.adopted, preorder=parser.preorder)
+                 defined=parser.defined, adopted=parser.adopted, shared=parser.shared,
+                 shared_names=parser.shared_names,
+                 preorder=parser.preorder)
