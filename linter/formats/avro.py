@@ -347,6 +347,15 @@ class _Differ:
     def fields(self, o: Node, n: Node, ctx: Ctx) -> None:
         pairs, old_left, new_left = _pair_fields(o, n)
         for of, nf in pairs:
+            # A field whose type is one node on both sides (a record NEW shares with OLD,
+            # or a primitive named by a string) reads the same as its type goes: when its
+            # own attributes are equal too there is nothing to report, and its JSON,
+            # which holds the whole of an inline record, need not be compared.
+            if of.type is nf.type and of.name == nf.name and of.doc == nf.doc and of.order == nf.order \
+                    and of.aliases == nf.aliases and not (of.annotations or nf.annotations) \
+                    and of.has_default == nf.has_default \
+                    and (not of.has_default or _same_value(of.default, nf.default)):
+                continue
             # A field written the same on both sides with a primitive type named by a string
             # ("int", not a reference to a named type) has nothing to report: its name, doc,
             # aliases, order and annotations are equal, and defaults valid for a primitive
