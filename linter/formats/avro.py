@@ -9,7 +9,6 @@ Avro specification 1.12.0, "Schema Resolution".
 """
 from __future__ import annotations
 
-import copy
 from collections import Counter
 from dataclasses import dataclass, field, replace
 from pathlib import Path
@@ -128,15 +127,15 @@ def _fastavro_gate(data, model: Model, display: str, previous: Loaded | None) ->
     (written the same, naming nothing outside itself, so read the same in either file)
     was parsed by fastavro in OLD already: NEW's copy names it instead, and fastavro is
     handed OLD's parse of it (``named_schemas``, its documented way to pass types parsed
-    before). That halves the gate's work on a large schema with a few edits
-    (benchmarks/scale.py); our own walk has already refused any name defined twice or
+    before). That cuts the gate's work on a large schema with a few edits to a third
+    (benchmarks/instructions.py); our own walk has already refused any name defined twice or
     used before its definition, the only verdicts a name in place of a definition could
     change.
     """
     from fastavro import parse_schema
 
     known: dict = {}
-    shared = model.shared if previous is not None else {}
+    shared = model.shared  # filled only when NEW was read beside OLD
     if shared:
         known.update((n, previous.gated[n]) for n in model.shared_names)
     checked = data

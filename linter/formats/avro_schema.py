@@ -481,11 +481,6 @@ def _int(v) -> bool:
     return isinstance(v, int) and not isinstance(v, bool)
 
 
-def _doc(obj: dict) -> str | None:
-    doc = obj.get("doc")
-    return doc if isinstance(doc, str) else None
-
-
 def _show(value) -> str:
     import json
 

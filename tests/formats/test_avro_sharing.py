@@ -27,6 +27,17 @@ def pair(tmp_path, old, new):
     return o, n_alone, n_beside
 
 
+def refusals(tmp_path, old, new):
+    """The errors reading NEW alone and reading it beside OLD raise (both must raise)."""
+    o = avro.load(write(tmp_path, "old.avsc", old), "old.avsc")
+    path = write(tmp_path, "new.avsc", new)
+    with pytest.raises(InputError) as alone:
+        avro.load(path, "new.avsc")
+    with pytest.raises(InputError) as beside:
+        avro.load_beside(path, "new.avsc", None, o)
+    return alone.value, beside.value
+
+
 def facts(changes):
     return [(c.kind, c.schema, c.path, c.old, c.new, dict(c.facts)) for c in changes]
 
@@ -75,15 +86,9 @@ def test_a_name_clash_is_reported_where_it_is_as_without_sharing(tmp_path):
     holder = {"type": "record", "name": "Holder", "fields": [{"name": "deep", "type": deep}]}
     old = meter({"name": "holder", "type": holder})
     new = meter({"name": "first", "type": deep}, {"name": "holder", "type": holder})
-    o = avro.load(write(tmp_path, "old.avsc", old), "old.avsc")
-    path = write(tmp_path, "new.avsc", new)
-    with pytest.raises(InputError) as alone:
-        avro.load(path, "new.avsc")
-    with pytest.raises(InputError) as beside:
-        avro.load_beside(path, "new.avsc", None, o)
-    assert (beside.value.message, beside.value.line, beside.value.column) == \
-        (alone.value.message, alone.value.line, alone.value.column)
-    assert "defined twice" in alone.value.message and alone.value.line is not None
+    alone, beside = refusals(tmp_path, old, new)
+    assert (beside.message, beside.line, beside.column) == (alone.message, alone.line, alone.column)
+    assert "defined twice" in alone.message and alone.line is not None
 
 
 def test_a_record_holding_an_ignored_logical_type_is_not_shared(tmp_path):
@@ -145,14 +150,9 @@ def test_the_gate_refuses_new_beside_old_as_alone(tmp_path):
     # what fastavro refuses elsewhere in NEW is refused as when NEW is read alone.
     old = meter({"name": "a", "type": channel("ChannelA")})
     new = meter({"name": "a", "type": channel("ChannelA")}, ONLY_FASTAVRO_REFUSES)
-    o = avro.load(write(tmp_path, "old.avsc", old), "old.avsc")
-    path = write(tmp_path, "new.avsc", new)
-    with pytest.raises(InputError) as alone:
-        avro.load(path, "new.avsc")
-    with pytest.raises(InputError) as beside:
-        avro.load_beside(path, "new.avsc", None, o)
-    assert beside.value.message == alone.value.message
-    assert "not a valid Avro schema: Default value <0> must match schema type: double" in alone.value.message
+    alone, beside = refusals(tmp_path, old, new)
+    assert beside.message == alone.message
+    assert "not a valid Avro schema: Default value <0> must match schema type: double" in alone.message
 
 
 def test_a_shared_record_is_named_in_the_gates_copy_and_the_file_is_untouched(tmp_path):
