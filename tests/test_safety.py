@@ -527,8 +527,10 @@ def test_field_pairing_by_name_then_aliases_in_old_order():
     from linter.formats.avro_schema import Field, Node
 
     def rec(*fields):
-        return Node(kind="record", fields=[Field(name=n, type=Node(kind="int"), position=i, aliases=tuple(a))
-                                           for i, (n, a) in enumerate(fields)])
+        node = Node(kind="record")
+        node.fields = [Field(name=n, type=Node(kind="int"), position=i, aliases=tuple(a))
+                       for i, (n, a) in enumerate(fields)]
+        return node
 
     old = rec(("a", []), ("b", []), ("c", ["z"]), ("d", []))
     new = rec(("x", ["d", "b"]), ("a", []), ("z", []), ("e", []))

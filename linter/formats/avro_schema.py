@@ -77,7 +77,6 @@ class Node:
     size: int | None = None
     symbols: tuple[str, ...] = ()
     enum_default: str | None = None
-    fields: list[Field] = field(default_factory=list)
     items: "Node | None" = None     # array items, map values
     branches: list["Node"] = field(default_factory=list)
     doc: str | None = None
@@ -91,6 +90,28 @@ class Node:
     span: tuple[int, int] | None = None
     extent: int | None = None  # records: how many JSON containers the definition holds
     _by_name: Any = field(default=None, init=False, repr=False)
+    # A record's fields, where the plainest ones (a name, a primitive type by name, a doc)
+    # may still be their JSON objects: ``fields`` builds their Field on first use, with
+    # the parse's node of each primitive (``_pending``). Most records of a large schema
+    # are shared or equal and never opened, so most Fields were built for nothing.
+    _fields: list = field(default_factory=list, init=False, repr=False)
+    _pending: dict | None = field(default=None, init=False, repr=False)
+
+    @property
+    def fields(self) -> list[Field]:
+        primitives = self._pending
+        if primitives is not None:
+            self._fields = [
+                f if f.__class__ is Field else
+                Field(f["name"], primitives[f["type"]], i, False, None, (), "ascending", f.get("doc"),
+                      _NO_ANNOTATIONS, f)
+                for i, f in enumerate(self._fields)]
+            self._pending = None
+        return self._fields
+
+    @fields.setter
+    def fields(self, value: list[Field]) -> None:
+        self._fields, self._pending = value, None
 
     @property
     def short(self) -> str | None:
@@ -379,7 +400,8 @@ class _Parser:
         # The common field ({"name", "type": "long", "doc"}) takes the short way through
         # each check: this loop runs once per field of both files (benchmarks/scale.py).
         seen = set()
-        out = node.fields
+        out = node._fields
+        plain = False
         primitives = self.primitives
         preorder = self.preorder
         preorder.append(id(fields))
@@ -400,12 +422,14 @@ class _Parser:
             doc = raw.get("doc")
             if (size == 2 or (size == 3 and doc is not None)) and (doc is None or doc.__class__ is str):
                 # Nothing but a name, a type and a doc: no aliases, order, default or
-                # annotations to check or copy, and no container but the type's.
-                if isinstance(ftype, str) and ftype in primitives:
-                    ftype = primitives[ftype]
+                # annotations to check or copy, and no container but the type's. With a
+                # primitive type, its Field waits until the record is opened (Node.fields).
+                if ftype.__class__ is str and ftype in primitives:
+                    out.append(raw)
+                    plain = True
                 else:
-                    ftype = self.parse(ftype, namespace, raw)
-                out.append(Field(name, ftype, position, False, None, (), "ascending", doc, _NO_ANNOTATIONS, raw))
+                    out.append(Field(name, self.parse(ftype, namespace, raw), position, False, None, (),
+                                     "ascending", doc, _NO_ANNOTATIONS, raw))
                 continue
             aliases = raw.get("aliases", ())
             if aliases:
@@ -432,6 +456,8 @@ class _Parser:
                 problem = default_problem(ftype, f.default)
                 if problem:
                     self.fail(f"field '{name}' default {_show(f.default)} {problem}", raw)
+        if plain:
+            node._pending = primitives
 
     def enum(self, node: Node, obj: dict):
         symbols = obj.get("symbols")
