@@ -1,10 +1,16 @@
 """The bracket scan of linter/sourcemap.py finds exactly the brackets outside strings."""
 import json
+from unittest import mock
 
 from hypothesis import given
 from hypothesis import strategies as st
 
+from linter import sourcemap
 from linter.sourcemap import _BRACKETS, _TOKENS, SourceMap
+
+# Brackets are counted per stretch of text (sourcemap._STRETCH); stretches of a few
+# characters put stretch boundaries beside, before and after brackets in small documents.
+stretches = st.sampled_from([1, 2, 3, 7, 64, sourcemap._STRETCH])
 
 text = st.text(alphabet='ab"\\[]{}\n\u00e9', max_size=10)
 docs = st.recursive(text | st.integers(), lambda kids: st.lists(kids, max_size=4)
@@ -46,26 +52,33 @@ plain_docs = st.recursive(plain_text | st.integers(), lambda kids: st.lists(kids
                           | st.dictionaries(plain_text, kids, max_size=4), max_leaves=20)
 
 
-@given(st.one_of(docs, plain_docs), st.integers(0, 3))
-def test_every_container_decodes_from_its_position(doc, indent):
+@given(st.one_of(docs, plain_docs), st.integers(0, 3), stretches)
+def test_every_container_decodes_from_its_position(doc, indent, stretch):
     # Checked against the standard library's decoder: the text at each container's
     # offset decodes to that container. Strings without brackets take the counting
     # path of SourceMap._build, the others the string-skipping pattern.
-    dumped, smap, containers = _mapped({"first": doc}, indent)
-    decoder = json.JSONDecoder()
-    for node in containers:
-        assert decoder.raw_decode(dumped, smap._positions[id(node)])[0] == node
+    with mock.patch.object(sourcemap, "_STRETCH", stretch):
+        dumped, smap, containers = _mapped({"first": doc}, indent)
+        decoder = json.JSONDecoder()
+        for node in containers:
+            assert decoder.raw_decode(dumped, smap.offset_of(node))[0] == node
 
 
-@given(st.one_of(docs, plain_docs), st.integers(0, 3), st.randoms(use_true_random=False))
-def test_lines_and_columns_of_every_container_in_any_order(doc, indent, rnd):
-    # Line numbers are counted from marks left by earlier lookups: asking in any order
-    # gives what counting from the start of the text gives.
-    dumped, smap, containers = _mapped({"first": doc, "second": [doc]}, indent)
-    rnd.shuffle(containers)
+@given(st.one_of(docs, plain_docs), st.integers(0, 3), st.randoms(use_true_random=False), stretches)
+def test_lines_and_columns_of_every_container_in_any_order(doc, indent, rnd, stretch):
+    # Line numbers are counted from marks left by earlier lookups, and brackets found
+    # stretch by stretch as lookups need them: asking in any order gives what counting
+    # from the start of the text gives.
+    with mock.patch.object(sourcemap, "_STRETCH", stretch):
+        dumped, smap, containers = _mapped({"first": doc, "second": [doc]}, indent)
+        rnd.shuffle(containers)
+        check_lines(dumped, smap, containers)
+
+
+def check_lines(dumped, smap, containers):
     for node in containers:
         line, column = smap.locate(node)
-        offset = smap._positions[id(node)]
+        offset = smap.offset_of(node)
         inner = len(dumped[offset + 1:]) - len(dumped[offset + 1:].lstrip())
         if dumped[offset + 1 + inner] not in "}]":
             offset += 1 + inner
