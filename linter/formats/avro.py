@@ -162,12 +162,15 @@ def _gate_copy(value, shared: dict, ignored: set):
         name = shared.get(id(value))
         if name is not None:
             return name
-        out = {k: _gate_copy(v, shared, ignored) for k, v in value.items()}
+        # Scalars are taken as they are, without a call each.
+        out = {k: v if v.__class__ is not dict and v.__class__ is not list else _gate_copy(v, shared, ignored)
+               for k, v in value.items()}
         if id(value) in ignored:
             out.pop("logicalType", None)
         return out
     if cls is list:
-        return [_gate_copy(v, shared, ignored) for v in value]
+        return [v if v.__class__ is not dict and v.__class__ is not list else _gate_copy(v, shared, ignored)
+                for v in value]
     return value
 
 

@@ -198,6 +198,8 @@ class _Parser:
         self.order: dict[int, int] = {}
         self.open: list[list[int]] = []
         self.valid_namespaces: set[str] = set()
+        # Field names checked once: records of one schema repeat them (id, site, ...).
+        self.valid_names: set[str] = set()
 
     def fail(self, message: str, obj=None):
         where = self.locate(obj) if isinstance(obj, (dict, list)) else None
@@ -382,8 +384,10 @@ class _Parser:
         if before is None or before.span is None or before.raw != obj:
             return None
         held = self.previous.defined[before.span[0]:before.span[1]]
-        if any(n.name in self.names for n in held):
-            return None
+        names = self.names
+        for n in held:  # usually the record alone: a loop, not a generator
+            if n.name in names:
+                return None
         self.adopted.append((before.raw, obj))
         self.shared[id(obj)] = full
         for n in held:
@@ -405,13 +409,16 @@ class _Parser:
         primitives = self.primitives
         preorder = self.preorder
         preorder.append(id(fields))
+        valid = self.valid_names
         for position, raw in enumerate(fields):
-            if not isinstance(raw, dict):
+            if raw.__class__ is not dict:  # what json.loads gives: no subclasses
                 self.fail(f"a field of record '{node.name}' must be an object", fields)
             preorder.append(id(raw))
             name = raw.get("name")
-            if not isinstance(name, str) or not (name.isascii() and name.isidentifier()):
-                self.fail(f"field name {name!r} of record '{node.name}' is not a valid Avro name", raw)
+            if name.__class__ is not str or name not in valid:
+                if not isinstance(name, str) or not (name.isascii() and name.isidentifier()):
+                    self.fail(f"field name {name!r} of record '{node.name}' is not a valid Avro name", raw)
+                valid.add(name)
             if name in seen:
                 self.fail(f"record '{node.name}' has two fields named '{name}'", raw)
             seen.add(name)
