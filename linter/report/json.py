@@ -72,5 +72,5 @@ def to_json(report) -> dict:
 
 
 def render(report, stream, **_options) -> None:
-    _json.dump(to_json(report), stream, indent=2, ensure_ascii=False, default=str)
-    stream.write("\n")
+    # One write of the joined text: dump() writes each of its hundreds of pieces.
+    stream.write(_json.dumps(to_json(report), indent=2, ensure_ascii=False, default=str) + "\n")
