@@ -309,11 +309,15 @@ class _Parser:
         kind = "record" if kind == "error" else kind
         start = len(self.preorder)
         self.preorder.append(id(obj))
-        ns_attr = obj.get("namespace")
-        if ns_attr is not None and not isinstance(ns_attr, str):
-            self.fail("'namespace' must be a string", obj)
-        if isinstance(ns_attr, str):
-            namespace = ns_attr or None
+        # A type, a name and fields alone (once the name is read: most nested records)
+        # hold no namespace, aliases, doc, annotations or other values to read.
+        bare = len(obj) == 3 and kind == "record" and "fields" in obj
+        if not bare:
+            ns_attr = obj.get("namespace")
+            if ns_attr is not None and not isinstance(ns_attr, str):
+                self.fail("'namespace' must be a string", obj)
+            if isinstance(ns_attr, str):
+                namespace = ns_attr or None
         full = self.full_name(obj.get("name"), namespace, obj)
         own_ns = full.rsplit(".", 1)[0] if "." in full else None
         if full in self.names or full in PRIMITIVES:
@@ -325,16 +329,19 @@ class _Parser:
                 # objects): only their number counts, unless a twin is asked for.
                 self.preorder.extend(repeat(None, adopted.extent - 1))
                 return adopted
-        aliases = obj.get("aliases", _MISSING)
-        if aliases is _MISSING:
-            aliases = ()
-        elif isinstance(aliases, list) and all(isinstance(a, str) for a in aliases):
-            aliases = tuple(self.full_name(a, own_ns, obj) for a in aliases)
+        if bare:
+            node = Node(kind, full, (), annotations=_NO_ANNOTATIONS, raw=obj)
         else:
-            self.fail(f"aliases of '{full}' must be a list of names", obj)
-        doc = obj.get("doc")
-        node = Node(kind, full, aliases, doc=doc if doc.__class__ is str else None,
-                    annotations=annotations_of(obj), raw=obj)
+            aliases = obj.get("aliases", _MISSING)
+            if aliases is _MISSING:
+                aliases = ()
+            elif isinstance(aliases, list) and all(isinstance(a, str) for a in aliases):
+                aliases = tuple(self.full_name(a, own_ns, obj) for a in aliases)
+            else:
+                self.fail(f"aliases of '{full}' must be a list of names", obj)
+            doc = obj.get("doc")
+            node = Node(kind, full, aliases, doc=doc if doc.__class__ is str else None,
+                        annotations=annotations_of(obj), raw=obj)
         self.names[full] = node  # before the body: a record may refer to itself
         seq = self.order[id(node)] = len(self.order)
         self.defined.append(node)
@@ -345,13 +352,16 @@ class _Parser:
             self.open.append(opened)
             ignored = len(self.ignored_logical)
             preorder = self.preorder
-            # The fields, and in key order around them any other value's containers
-            # (``around``, written out: this runs once per record of both files).
-            for k, value in obj.items():
-                if k == "fields":
-                    self.record_fields(node, obj, own_ns)
-                elif value.__class__ is dict or value.__class__ is list:
-                    preorder.extend(_containers(value))
+            if bare:
+                self.record_fields(node, obj, own_ns)
+            else:
+                # The fields, and in key order around them any other value's containers
+                # (``around``, written out: this runs once per record of both files).
+                for k, value in obj.items():
+                    if k == "fields":
+                        self.record_fields(node, obj, own_ns)
+                    elif value.__class__ is dict or value.__class__ is list:
+                        preorder.extend(_containers(value))
             self.open.pop()
             low = opened[0]
             node.extent = len(preorder) - start
