@@ -3,8 +3,9 @@
 Wall-clock ratios on a shared virtual machine move by a third between runs. valgrind's
 callgrind counts the instructions a process executes, which repeat exactly for the same
 program, inputs and environment, whatever else the machine does. Three processes run
-under it with one hash seed: one only warms up (imports, one floor, one comparison), one
-warms up and then runs the floor once more, one warms up and then compares once more. The
+under it with one hash seed: one only warms up (imports, one floor, one comparison, then
+empties the collector and sets the survivors aside), one warms up and then runs the floor once more, one warms up and
+then compares once more. The
 differences are the floor's and the comparison's instructions; their ratio is printed
 beside the bound of ``scale.py`` (2x). Instructions are not time (a cache miss costs more
 than an add), so this complements the wall clock, it does not replace it.
@@ -25,6 +26,7 @@ import gen
 from common import HERE, Verdicts
 
 CHILD = """
+import gc
 import sys
 sys.path.insert(0, {here!r})
 from pathlib import Path
@@ -32,6 +34,11 @@ import scale
 old, new, fmt, step = Path({old!r}), Path({new!r}), {fmt!r}, {step!r}
 scale.FLOORS[fmt](old, new)
 scale.total(old, new)
+# Emptied, as timed_pair does, and what survives set aside (gc.freeze): the collector's
+# passes in the step then depend on the step's own objects alone, not on what the
+# warm-up of this version of the code left alive (the floor's count moved by a fifth).
+gc.collect()
+gc.freeze()
 if step == "floor":
     scale.FLOORS[fmt](old, new)
 elif step == "total":
