@@ -4,9 +4,9 @@ Wall-clock ratios on a shared virtual machine move by a third between runs. valg
 callgrind counts the instructions a process executes, which repeat exactly for the same
 program, inputs and environment, whatever else the machine does. Three processes run
 under it with one hash seed: one only warms up (imports, one floor, one comparison, then
-empties the collector and sets the survivors aside), one warms up and then runs the floor once more, one warms up and
-then compares once more. The
-differences are the floor's and the comparison's instructions; their ratio is printed
+empties the collector and sets the survivors aside), one warms up and then runs the floor
+once more, one warms up and then compares once more. The differences are the floor's and
+the comparison's instructions; their ratio is printed
 beside the bound of ``scale.py`` (2x). Instructions are not time (a cache miss costs more
 than an add), so this complements the wall clock, it does not replace it.
 

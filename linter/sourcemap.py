@@ -58,13 +58,12 @@ def preorder(tree) -> list[int]:
     return order
 
 
-def _find_all(text: str, chars: str, start: int = 0, end: int | None = None) -> list[int]:
-    """Sorted offsets of every one of ``chars`` in ``text[start:end]`` (str.find runs in
-    C; a loop over its hits took half the time of splitting, benchmarks/scale.py)."""
+def _brackets_in(text: str, start: int, end: int) -> list[int]:
+    """Sorted offsets of the brackets in ``text[start:end]`` (str.find runs in C; a loop
+    over its hits took half the time of splitting, benchmarks/scale.py)."""
     out: list[int] = []
     add, find = out.append, text.find
-    end = len(text) if end is None else end
-    for char in chars:
+    for char in "{[":
         i = find(char, start, end)
         while i >= 0:
             add(i)
@@ -151,7 +150,7 @@ class SourceMap:
         found = self._stretches.get(stretch)
         if found is None:
             start = stretch * _STRETCH
-            found = self._stretches[stretch] = _find_all(self._text, "{[", start, start + _STRETCH)
+            found = self._stretches[stretch] = _brackets_in(self._text, start, start + _STRETCH)
         return found[k - before[stretch]]
 
     def _line_and_column(self, offset: int) -> tuple[int, int]:

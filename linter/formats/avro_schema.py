@@ -124,10 +124,10 @@ class Node:
     def field(self, name: str) -> Field | None:
         # By name through an index: a linear scan per lookup made records of thousands of
         # fields quadratic (benchmarks/scale.py). Rebuilt whenever the field list has grown.
-        index = self._by_name
-        if index is None or index[0] != len(self.fields):
-            index = (len(self.fields), {})
-            for f in self.fields:
+        index, fields = self._by_name, self.fields
+        if index is None or index[0] != len(fields):
+            index = (len(fields), {})
+            for f in fields:
                 index[1].setdefault(f.name, f)
             self._by_name = index
         return index[1].get(name)

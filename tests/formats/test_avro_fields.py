@@ -39,8 +39,7 @@ def as_parsed(fields: list[Field]) -> list[tuple]:
             for f in fields]
 
 
-def check_records(model) -> int:
-    checked = 0
+def check_records(model) -> None:
     for node in model.defined:
         if node.kind != "record":
             continue
@@ -51,8 +50,6 @@ def check_records(model) -> int:
             if isinstance(f.raw["type"], str) and f.raw["type"] in avro_schema.PRIMITIVES:
                 assert f.type.kind == f.raw["type"]
         assert node.fields is fields, "built once: the differ compares fields by identity"
-        checked += 1
-    return checked
 
 
 @pytest.mark.parametrize("path", FILES, ids=lambda p: f"{p.parent.name}/{p.name}")
@@ -76,7 +73,6 @@ def test_plain_fields_wait_until_the_record_is_opened():
     assert reading._fields[0] is data["fields"][0]  # still its JSON
     assert isinstance(reading._fields[1], Field) and isinstance(reading._fields[2], Field)
     assert [f.name for f in reading.fields] == ["litres", "site", "flow"]
-    assert reading.field("litres").type is model.names["Reading"].field("litres").type
     assert reading.field("litres").type.kind == "long"
     assert reading.field("site").type is model.names["Site"]
     assert reading.field("flow").annotations == {"unit": "L/s"}
