@@ -58,16 +58,19 @@ class Loaded:
     gated: dict = field(default_factory=dict)  # fastavro's parse of each named type
     _twins: dict | None = field(default=None, init=False, repr=False)
 
-    def loc(self, raw) -> Location:
-        if not isinstance(raw, (dict, list)):
-            return Location(self.file, None)
-        line = self.sourcemap.line_of(raw)
-        if line is None and self.model.adopted:
-            twin = self.twins().get(id(raw))
-            if twin is not None:
-                self.sourcemap.walk_fully()  # the parse listed a shared record's objects as gaps
-                line = self.sourcemap.line_of(twin)
-        return Location(self.file, line)
+    def locations(self, raws: list) -> list[Location]:
+        """The location of each of ``raws`` in this file, looked up together."""
+        lines = self.sourcemap.lines_of(raws)
+        if self.model.adopted and None in lines:
+            # A shared record's objects are OLD's: each is located at its twin here,
+            # which the parse listed as a gap.
+            twins = self.twins()
+            missing = [i for i, line in enumerate(lines) if line is None and id(raws[i]) in twins]
+            if missing:
+                self.sourcemap.walk_fully()
+                for i, line in zip(missing, self.sourcemap.lines_of([twins[id(raws[i])] for i in missing])):
+                    lines[i] = line
+        return [Location(self.file, line) for line in lines]
 
     def twins(self) -> dict:
         """This file's object for each of OLD's objects inside a shared record.
@@ -207,30 +210,41 @@ def _collect_paths(node: Node, prefix: str, active: set, out: list) -> None:
         active.discard(id(node))
 
 
+class _At:
+    """A location still to look up: a JSON object of a loaded file."""
+
+    __slots__ = ("loaded", "raw")
+
+    def __init__(self, loaded: Loaded, raw):
+        self.loaded, self.raw = loaded, raw
+
+
 class Ctx:
     """Where the differ is: the root type, the path, and OLD's and NEW's objects there.
 
-    Locations are resolved only when a change asks for one: looking up every paired
-    field's line built both source maps even for identical files (benchmarks/scale.py).
+    Locations are looked up only for the changes reported, and all of a file's together
+    once the diff is done (``_located``): looking up every paired field's line built both
+    source maps even for identical files, and indexing every container of a file for a
+    few lookups cost more than the lookups (benchmarks/scale.py).
     """
 
     __slots__ = ("schema", "path", "top", "_old", "_new")
 
     def __init__(self, schema: str, path: str, old_at, new_at, top: bool = False):
-        # old_at/new_at: a Location, None, or a (Loaded, raw object) pair resolved on use.
+        # old_at/new_at: a Location, None, or a (Loaded, raw object) pair located later.
         self.schema, self.path, self.top = schema, path, top
         self._old, self._new = old_at, new_at
 
     @property
-    def old_loc(self) -> Location | None:
+    def old_loc(self) -> "Location | _At | None":
         if isinstance(self._old, tuple):
-            self._old = self._old[0].loc(self._old[1])
+            self._old = _At(*self._old)
         return self._old
 
     @property
-    def new_loc(self) -> Location | None:
+    def new_loc(self) -> "Location | _At | None":
         if isinstance(self._new, tuple):
-            self._new = self._new[0].loc(self._new[1])
+            self._new = _At(*self._new)
         return self._new
 
     def at(self, name: str, old_at, new_at) -> "Ctx":
@@ -246,7 +260,25 @@ def diff(old: Schema, new: Schema) -> list[Change]:
             differ.node(o, n, Ctx(schema, "", (old.model, o.raw), (new.model, n.raw), top=True))
     except RecursionError:
         raise InputError("schemas nested too deeply to compare", new.file) from None
-    return differ.changes
+    return _located(differ.changes)
+
+
+def _located(changes: list[Change]) -> list[Change]:
+    """``changes`` with each location still to look up (``_At``) looked up, a file at a time."""
+    wanted: dict[int, list[_At]] = {}  # by the id of the Loaded file
+    files: dict[int, Loaded] = {}
+    for c in changes:
+        for at in (c.old_loc, c.new_loc):
+            if at.__class__ is _At:
+                wanted.setdefault(id(at.loaded), []).append(at)
+                files[id(at.loaded)] = at.loaded
+    if not wanted:
+        return changes
+    found: dict[int, Location] = {}
+    for key, ats in wanted.items():
+        found.update(zip(map(id, ats), files[key].locations([at.raw for at in ats])))
+    return [replace(c, old_loc=found.get(id(c.old_loc), c.old_loc), new_loc=found.get(id(c.new_loc), c.new_loc))
+            for c in changes]
 
 
 def _same_value(a, b) -> bool:

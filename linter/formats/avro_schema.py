@@ -162,7 +162,7 @@ class Model:
     # names the shared records define (themselves first, then what they hold).
     shared: dict = field(default_factory=dict)
     shared_names: list = field(default_factory=list)
-    # Ids of the file's JSON containers in document preorder (None where not needed).
+    # The file's JSON containers in document preorder (None where not needed).
     preorder: list = field(default_factory=list)
 
 
@@ -182,8 +182,9 @@ class _Parser:
         self.adopted: list[tuple[dict, dict]] = []
         self.shared: dict[int, str] = {}
         self.shared_names: list[str] = []
-        # Ids of the JSON containers in document preorder, as the walk meets them: the
-        # source map's own preorder walk then need not run (linter/sourcemap.py). Each
+        # The JSON containers in document preorder, as the walk meets them: the source
+        # map's own preorder walk then need not run (linter/sourcemap.py). The objects,
+        # not their ids: an id is a new int per container. Each
         # container is entered once, and the values the walk does not read as types are
         # listed in their key order around the one it does (``around``).
         self.preorder: list = []
@@ -196,7 +197,7 @@ class _Parser:
         # such index it refers to by name: a record refers outside itself when that is
         # below its own (everything it defines comes after it).
         self.order: dict[int, int] = {}
-        self.open: list[list[int]] = []
+        self.lows: list[int] = []
         self.valid_namespaces: set[str] = set()
         # Field names checked once: records of one schema repeat them (id, site, ...).
         self.valid_names: set[str] = set()
@@ -230,9 +231,11 @@ class _Parser:
         for candidate in candidates:
             if candidate in self.names:
                 node = self.names[candidate]
-                if self.open:
-                    low = self.open[-1]
-                    low[0] = min(low[0], self.order[id(node)])
+                lows = self.lows
+                if lows:
+                    seq = self.order[id(node)]
+                    if seq < lows[-1]:
+                        lows[-1] = seq
                 return node
         self.fail(f"unknown type name '{name}'" + (f" (looked for '{candidates[0]}')" if candidates[0] != name else ""), where)
 
@@ -250,13 +253,13 @@ class _Parser:
         kind = obj.get("type")
         if isinstance(kind, (dict, list)):
             # {"type": {...}} or {"type": [...]}: a wrapper around a schema
-            self.preorder.append(id(obj))
+            self.preorder.append(obj)
             return self.around(obj, "type", lambda: self.parse(kind, namespace, obj))
         if not isinstance(kind, str):
             self.fail("a schema object needs a 'type'", obj)
         if kind in NAMED:
             return self.named(obj, kind, namespace)
-        self.preorder.append(id(obj))
+        self.preorder.append(obj)
         if kind in PRIMITIVES:
             node = Node(kind=kind, raw=obj)
             self.logical(node, obj)
@@ -289,7 +292,7 @@ class _Parser:
 
     def union(self, items: list, namespace: str | None) -> Node:
         node = Node(kind="union", raw=items)
-        self.preorder.append(id(items))
+        self.preorder.append(items)
         seen: dict[str, int] = {}
         for item in items:
             branch = self.parse(item, namespace, items)
@@ -306,20 +309,26 @@ class _Parser:
         return node
 
     def named(self, obj: dict, kind: str, namespace: str | None) -> Node:
-        kind = "record" if kind == "error" else kind
-        start = len(self.preorder)
-        self.preorder.append(id(obj))
+        preorder = self.preorder
+        start = len(preorder)
+        preorder.append(obj)
         # A type, a name and fields alone (once the name is read: most nested records)
         # hold no namespace, aliases, doc, annotations or other values to read.
-        bare = len(obj) == 3 and kind == "record" and "fields" in obj
+        bare = kind == "record" and len(obj) == 3 and "fields" in obj
         if not bare:
+            kind = "record" if kind == "error" else kind
             ns_attr = obj.get("namespace")
             if ns_attr is not None and not isinstance(ns_attr, str):
                 self.fail("'namespace' must be a string", obj)
             if isinstance(ns_attr, str):
                 namespace = ns_attr or None
-        full = self.full_name(obj.get("name"), namespace, obj)
-        own_ns = full.rsplit(".", 1)[0] if "." in full else None
+        name = obj.get("name")
+        # The usual name: an identifier (so no dot) in a namespace already checked.
+        if name.__class__ is str and namespace in self.valid_namespaces and name.isascii() and name.isidentifier():
+            full, own_ns = f"{namespace}.{name}", namespace
+        else:
+            full = self.full_name(name, namespace, obj)
+            own_ns = full.rsplit(".", 1)[0] if "." in full else None
         if full in self.names or full in PRIMITIVES:
             self.fail(f"type '{full}' is defined twice", obj)
         if kind == "record" and self.previous is not None:
@@ -327,7 +336,7 @@ class _Parser:
             if adopted is not None:
                 # Its containers are never located in this file (the nodes hold OLD's
                 # objects): only their number counts, unless a twin is asked for.
-                self.preorder.extend(repeat(None, adopted.extent - 1))
+                preorder.extend(repeat(None, adopted.extent - 1))
                 return adopted
         if bare:
             node = Node(kind, full, (), annotations=_NO_ANNOTATIONS, raw=obj)
@@ -348,10 +357,9 @@ class _Parser:
         if kind == "record":
             if "fields" not in obj:
                 self.fail(f"record '{node.name}' needs a 'fields' list", obj)
-            opened = [seq]
-            self.open.append(opened)
+            lows = self.lows
+            lows.append(seq)
             ignored = len(self.ignored_logical)
-            preorder = self.preorder
             if bare:
                 self.record_fields(node, obj, own_ns)
             else:
@@ -362,14 +370,16 @@ class _Parser:
                         self.record_fields(node, obj, own_ns)
                     elif value.__class__ is dict or value.__class__ is list:
                         preorder.extend(_containers(value))
-            self.open.pop()
-            low = opened[0]
+            low = lows.pop()
             node.extent = len(preorder) - start
-            node.outside_refs = low < seq
-            if not node.outside_refs and len(self.ignored_logical) == ignored:
-                node.span = (seq, len(self.defined))
-            if self.open and low < self.open[-1][0]:
-                self.open[-1][0] = low
+            if low < seq:
+                node.outside_refs = True
+                if lows and low < lows[-1]:
+                    lows[-1] = low
+            else:
+                node.outside_refs = False
+                if len(self.ignored_logical) == ignored:
+                    node.span = (seq, len(self.defined))
         elif kind == "enum":
             self.enum(node, obj)
             self.around(obj, None)
@@ -418,12 +428,12 @@ class _Parser:
         plain = False
         primitives = self.primitives
         preorder = self.preorder
-        preorder.append(id(fields))
+        preorder.append(fields)
         valid = self.valid_names
         for position, raw in enumerate(fields):
             if raw.__class__ is not dict:  # what json.loads gives: no subclasses
                 self.fail(f"a field of record '{node.name}' must be an object", fields)
-            preorder.append(id(raw))
+            preorder.append(raw)
             name = raw.get("name")
             if name.__class__ is not str or name not in valid:
                 if not isinstance(name, str) or not (name.isascii() and name.isidentifier()):

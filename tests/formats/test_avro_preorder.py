@@ -20,9 +20,14 @@ def parsed(data, previous=None):
     return avro_schema.parse(data, "x.avsc", lambda obj: None, previous)
 
 
+def ids(containers):
+    # Containers by identity: equal dicts at two places must not stand for each other.
+    return [None if c is None else id(c) for c in containers]
+
+
 def agrees(listed, walked):
     # A shared record's containers are listed as gaps (None): only their number counts.
-    return len(listed) == len(walked) and all(a is None or a == b for a, b in zip(listed, walked))
+    return len(listed) == len(walked) and all(a is None or a is b for a, b in zip(listed, walked))
 
 
 @pytest.mark.parametrize("path", CASES, ids=lambda p: f"{p.parent.name}/{p.name}")
@@ -32,7 +37,7 @@ def test_every_case_file_is_listed_in_preorder(path):
         model = parsed(data)
     except InputError:
         return
-    assert model.preorder == preorder(data)
+    assert ids(model.preorder) == ids(preorder(data))
 
 
 def test_odd_placements_of_containers_are_listed_in_key_order():
@@ -45,7 +50,7 @@ def test_odd_placements_of_containers_are_listed_in_key_order():
         {"name": "e", "type": {"type": "map", "values": {"type": "long", "logicalType": "x", "p": [[]]}}},
         {"name": "f", "aliases": ["g"], "type": "S", "x": {}},
     ], "trailer": [{}]}
-    assert parsed(data).preorder == preorder(data)
+    assert ids(parsed(data).preorder) == ids(preorder(data))
 
 
 @given(evolution(logical=True))
@@ -56,5 +61,5 @@ def test_generated_schemas_are_listed_in_preorder_alone_and_beside(evo):
         n = parsed(new, o)
     except InputError:
         return
-    assert o.preorder == preorder(old)
+    assert ids(o.preorder) == ids(preorder(old))
     assert agrees(n.preorder, preorder(new))

@@ -38,7 +38,7 @@ def _mapped(doc, indent):
     dumped = json.dumps(doc, indent=indent or None)
     tree = json.loads(dumped)
     smap = SourceMap(dumped, tree)
-    smap._build()
+    smap._check()
     containers, stack = [], [tree]
     while stack:
         node = stack.pop()
@@ -56,7 +56,7 @@ plain_docs = st.recursive(plain_text | st.integers(), lambda kids: st.lists(kids
 def test_every_container_decodes_from_its_position(doc, indent, stretch):
     # Checked against the standard library's decoder: the text at each container's
     # offset decodes to that container. Strings without brackets take the counting
-    # path of SourceMap._build, the others the string-skipping pattern.
+    # path of SourceMap._check, the others the string-skipping pattern.
     with mock.patch.object(sourcemap, "_STRETCH", stretch):
         dumped, smap, containers = _mapped({"first": doc}, indent)
         decoder = json.JSONDecoder()
@@ -84,3 +84,20 @@ def check_lines(dumped, smap, containers):
             offset += 1 + inner
         assert line == dumped.count("\n", 0, offset) + 1
         assert column == offset - (dumped.rfind("\n", 0, offset) + 1) + 1
+
+
+@given(st.one_of(docs, plain_docs), st.integers(0, 3), st.randoms(use_true_random=False), stretches)
+def test_many_lines_at_once_are_the_lines_of_each(doc, indent, rnd, stretch):
+    # SourceMap.lines_of searches the preorder once for all the nodes it is asked for;
+    # each answer must be what a lookup of that node alone gives, duplicates and
+    # objects outside the tree (None) included, in the order asked.
+    with mock.patch.object(sourcemap, "_STRETCH", stretch):
+        dumped, alone, containers = _mapped({"first": doc, "second": [doc]}, indent)
+        asked = containers + containers[:2] + [{"not": "in the tree"}, "text", None]
+        rnd.shuffle(asked)
+        expected = [alone.line_of(node) for node in asked]
+        assert None in expected
+        together = SourceMap(dumped, alone._tree)
+        together.known_preorder(sourcemap.preorder(alone._tree))
+        assert together.lines_of(asked) == expected
+        assert SourceMap(dumped, alone._tree).lines_of(asked) == expected
