@@ -5,6 +5,7 @@ The command line is a thin layer over this module; other tools import it directl
 from __future__ import annotations
 
 import os
+import stat
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable, Iterable
@@ -75,12 +76,10 @@ def _walk_error(exc: OSError):
 def pairs(old: str | Path, new: str | Path) -> list[Pair]:
     """Pair two files, or the schema files of two directories by relative path."""
     old, new = Path(old), Path(new)
-    for path in (old, new):
-        if not path.exists():
-            raise InputError("no such file or directory", str(path))
-    if old.is_dir() != new.is_dir():
+    old_dir, new_dir = _is_dir(old), _is_dir(new)
+    if old_dir != new_dir:
         raise UsageError(f"cannot compare a directory with a file: {old} and {new}")
-    if not old.is_dir():
+    if not old_dir:
         return [Pair(old, new, str(old), str(new))]
     olds, news = _schema_files(old), _schema_files(new)
     if not olds and not news:
@@ -90,6 +89,16 @@ def pairs(old: str | Path, new: str | Path) -> list[Pair]:
              str(old / rel), str(new / rel))
         for rel in sorted(set(olds) | set(news))
     ]
+
+
+def _is_dir(path: Path) -> bool:
+    """Whether ``path`` is a directory; refused when it does not exist (one stat call)."""
+    try:
+        return stat.S_ISDIR(os.stat(path).st_mode)
+    except (FileNotFoundError, NotADirectoryError):
+        raise InputError("no such file or directory", str(path)) from None
+    except OSError as exc:
+        raise InputError(f"cannot read: {exc.strerror or exc}", str(path)) from None
 
 
 def _file_change(kind: str, fmt: str, pair: Pair) -> Change:
@@ -218,8 +227,10 @@ def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: s
         from . import consumers as impact
 
         registry = impact.load(consumers)  # a bad registry fails before any schema is read
-    roots = (Path(old), Path(new)) if Path(old).is_dir() and Path(new).is_dir() else None
-    comparisons = compare(pairs(old, new), policy, format=format, options=options, jobs=jobs, roots=roots)
+    pairs_ = pairs(old, new)
+    folders = os.path.isdir(old)  # then NEW is one too (pairs refuses a folder and a file)
+    roots = (Path(old), Path(new)) if folders else None
+    comparisons = compare(pairs_, policy, format=format, options=options, jobs=jobs, roots=roots)
     if witness:
         from .witness import attach
 
@@ -229,7 +240,7 @@ def check(old: str | Path, new: str | Path, *, mode: str = "backward", format: s
     report = Report(mode=policy.mode if isinstance(policy, engine.Policy) else mode,
                     comparisons=comparisons, settings=settings)
     if registry is not None:
-        impact.apply(report, registry, warn_unmatched=Path(old).is_dir())
+        impact.apply(report, registry, warn_unmatched=folders)
     return report
 
 

@@ -51,7 +51,10 @@ class Rule:
     status: str = "stable"
 
     def render(self, context: Mapping[str, Any]) -> str:
-        return _FORMATTER.vformat(self.message, (), _Context(self, context))
+        # Lists read as "a, b"; str.format_map runs in C, string.Formatter in Python.
+        return self.message.format_map(_Context(self, {
+            k: ", ".join(map(str, v)) if isinstance(v, (list, tuple, set, frozenset)) else v
+            for k, v in context.items()}))
 
     @property
     def effect_text(self) -> str:
@@ -77,14 +80,7 @@ class _Context(dict):
         raise CatalogueError(f"rule {self._rule.id}: message names {{{key}}}, which the change does not carry")
 
 
-class _Formatter(string.Formatter):
-    def format_field(self, value, format_spec):
-        if isinstance(value, (list, tuple, set, frozenset)):
-            value = ", ".join(str(v) for v in value)
-        return super().format_field(value, format_spec)
-
-
-_FORMATTER = _Formatter()
+_FORMATTER = string.Formatter()  # parses templates for the names they quote
 
 
 def _effect(where: str, table: Mapping) -> Compat:

@@ -1,9 +1,11 @@
-"""SARIF (validated against the OASIS SARIF 2.1.0 schema), Markdown and CI-log annotations."""
+"""The JSON layout, SARIF (validated against the OASIS SARIF 2.1.0 schema), Markdown and CI-log annotations."""
 import io
 import json
 from pathlib import Path
 
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 
 from linter.api import Report
 from linter.catalogue import load as load_catalogue
@@ -158,3 +160,27 @@ def test_markdown_names_the_consumers_to_tell(report):
     text = rendered("markdown", report)
     assert "**Consumers to tell:** leak-detection (leaks@example.org)\n" in text
     assert "| read by |" in text and "| leak-detection, billing |" in text
+
+
+json_values = st.recursive(
+    st.none() | st.booleans() | st.integers() | st.floats(allow_nan=False) | st.text(),
+    lambda kids: st.lists(kids, max_size=3) | st.dictionaries(st.text(), kids, max_size=3), max_leaves=12)
+
+
+@given(st.dictionaries(st.text(), json_values | st.lists(json_values, max_size=3), max_size=6))
+def test_the_json_layout_reads_back_as_the_object(obj):
+    # The layout is written by json's C encoder (linter/report/json.py): what it prints
+    # must decode, by the standard library's decoder, to exactly the object given.
+    from linter.report.json import layout
+
+    assert json.loads(layout(obj)) == obj
+
+
+def test_the_json_report_puts_each_finding_on_a_line_of_its_own(report, validate_report):
+    text = rendered("json", report)
+    data = validate_report(text)
+    lines = text.splitlines()
+    assert lines[0] == "{" and lines[-1] == "}"
+    found = [json.loads(line.strip().rstrip(",")) for line in lines if line.startswith('    {"rule": ')]
+    assert found == data["findings"] and len(found) == 3
+    assert '"message": "a 50% share,\\nnew line"' in text  # a newline inside a value stays escaped

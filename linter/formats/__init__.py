@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import importlib
 import json
+import os
 from dataclasses import dataclass, field
 from pathlib import Path
 from collections.abc import Mapping
@@ -94,10 +95,11 @@ def adapter(name: str) -> Format:
 def read_text(path: Path, display: str) -> str:
     """Read a schema file as UTF-8, refusing oversized and undecodable files in one line."""
     try:
-        size = path.stat().st_size
-        if size > MAX_BYTES:
-            raise InputError(f"file is {size} bytes; schema files over {MAX_BYTES} bytes are refused", display)
-        data = path.read_bytes()
+        with open(path, "rb") as file:
+            size = os.fstat(file.fileno()).st_size
+            if size > MAX_BYTES:
+                raise InputError(f"file is {size} bytes; schema files over {MAX_BYTES} bytes are refused", display)
+            data = file.read()
     except FileNotFoundError:
         raise InputError("no such file", display) from None
     except IsADirectoryError:

@@ -126,14 +126,17 @@ def _fastavro_gate(data, model: Model, display: str, previous: Loaded | None) ->
 
     Returns the named types fastavro parsed, by full name. fastavro rejects invalid
     logical types (a decimal whose scale exceeds its precision), where the specification
-    says to ignore them: those are taken out of its copy. A record NEW shares with OLD
+    says to ignore them: those are taken out of a copy. A record NEW shares with OLD
     (written the same, naming nothing outside itself, so read the same in either file)
-    was parsed by fastavro in OLD already: NEW's copy names it instead, and fastavro is
-    handed OLD's parse of it (``named_schemas``, its documented way to pass types parsed
+    was parsed by fastavro in OLD already: NEW names it instead, and fastavro is handed
+    OLD's parse of it (``named_schemas``, its documented way to pass types parsed
     before). That cuts the gate's work on a large schema with a few edits to a third
     (benchmarks/instructions.py); our own walk has already refused any name defined twice or
     used before its definition, the only verdicts a name in place of a definition could
-    change.
+    change. The names are put in place in the parsed file itself for the call and the
+    records put back after it (a copy of the containers on the way cost a tenth of the
+    comparison, benchmarks/scale.py); fastavro 1.13 builds its own objects and leaves its
+    input as it was (checked on every Avro file in tests/ and schemas_example/).
     """
     from fastavro import parse_schema
 
@@ -141,12 +144,14 @@ def _fastavro_gate(data, model: Model, display: str, previous: Loaded | None) ->
     shared = model.shared  # filled only when NEW was read beside OLD
     if shared:
         known.update((n, previous.gated[n]) for n in model.shared_names)
-    checked = data
-    if model.ignored_logical or shared:
-        # Copy only to take logical types out or put names in; fastavro 1.13 leaves its
-        # input as it was (checked on every Avro file in tests/ and schemas_example/),
-        # and a whole copy cost more than fastavro's own parse on large schemas.
+    checked, swapped = data, ()
+    if model.ignored_logical or len(model.sites) != len(shared):
+        # Logical types to take out, or a shared record no container holds (the root).
         checked = _gate_copy(data, shared, {id(obj) for obj in model.ignored_logical})
+    elif shared:
+        swapped = model.sites
+        for container, key, _, name in swapped:
+            container[key] = name
     try:
         parse_schema(checked, known, _write_hint=False)
     except RecursionError:
@@ -154,6 +159,9 @@ def _fastavro_gate(data, model: Model, display: str, previous: Loaded | None) ->
     except Exception as exc:  # noqa: BLE001 - fastavro raises many types; all mean bad input
         reason = " ".join(str(exc).split()) or type(exc).__name__
         raise InputError(f"not a valid Avro schema: {reason}", display) from None
+    finally:
+        for container, key, record, _ in swapped:
+            container[key] = record
     return known
 
 

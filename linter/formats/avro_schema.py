@@ -162,6 +162,9 @@ class Model:
     # names the shared records define (themselves first, then what they hold).
     shared: dict = field(default_factory=dict)
     shared_names: list = field(default_factory=list)
+    # (container, key, record, full name) where each shared record sits in this file's
+    # JSON, for those a container holds (all but a shared root).
+    sites: list = field(default_factory=list)
     # The file's JSON containers in document preorder (None where not needed).
     preorder: list = field(default_factory=list)
 
@@ -182,6 +185,7 @@ class _Parser:
         self.adopted: list[tuple[dict, dict]] = []
         self.shared: dict[int, str] = {}
         self.shared_names: list[str] = []
+        self.sites: list[tuple] = []
         # The JSON containers in document preorder, as the walk meets them: the source
         # map's own preorder walk then need not run (linter/sourcemap.py). The objects,
         # not their ids: an id is a new int per container. Each
@@ -239,11 +243,13 @@ class _Parser:
                 return node
         self.fail(f"unknown type name '{name}'" + (f" (looked for '{candidates[0]}')" if candidates[0] != name else ""), where)
 
-    def parse(self, obj, namespace: str | None, where=None) -> Node:
+    def parse(self, obj, namespace: str | None, where=None, key=None) -> Node:
+        """The node of schema ``obj``, which sits at ``where[key]`` (``where`` also
+        places errors; ``key`` is None where no container holds it)."""
         if obj.__class__ is dict:  # the usual case first: a record in a field
             kind = obj.get("type")
             if kind.__class__ is str and kind in NAMED:
-                return self.named(obj, kind, namespace)
+                return self.named(obj, kind, namespace, where, key)
         elif isinstance(obj, str):
             return self.reference(obj, namespace, where)
         elif isinstance(obj, list):
@@ -254,11 +260,11 @@ class _Parser:
         if isinstance(kind, (dict, list)):
             # {"type": {...}} or {"type": [...]}: a wrapper around a schema
             self.preorder.append(obj)
-            return self.around(obj, "type", lambda: self.parse(kind, namespace, obj))
+            return self.around(obj, "type", lambda: self.parse(kind, namespace, obj, "type"))
         if not isinstance(kind, str):
             self.fail("a schema object needs a 'type'", obj)
         if kind in NAMED:
-            return self.named(obj, kind, namespace)
+            return self.named(obj, kind, namespace, where, key)
         self.preorder.append(obj)
         if kind in PRIMITIVES:
             node = Node(kind=kind, raw=obj)
@@ -268,12 +274,12 @@ class _Parser:
         if kind == "array":
             if "items" not in obj:
                 self.fail("an array needs 'items'", obj)
-            return Node(kind="array", items=self.around(obj, "items", lambda: self.parse(obj["items"], namespace, obj)),
+            return Node(kind="array", items=self.around(obj, "items", lambda: self.parse(obj["items"], namespace, obj, "items")),
                         raw=obj)
         if kind == "map":
             if "values" not in obj:
                 self.fail("a map needs 'values'", obj)
-            return Node(kind="map", items=self.around(obj, "values", lambda: self.parse(obj["values"], namespace, obj)),
+            return Node(kind="map", items=self.around(obj, "values", lambda: self.parse(obj["values"], namespace, obj, "values")),
                         raw=obj)
         node = self.reference(kind, namespace, obj)
         self.around(obj, None)
@@ -294,8 +300,8 @@ class _Parser:
         node = Node(kind="union", raw=items)
         self.preorder.append(items)
         seen: dict[str, int] = {}
-        for item in items:
-            branch = self.parse(item, namespace, items)
+        for i, item in enumerate(items):
+            branch = self.parse(item, namespace, items, i)
             if branch.kind == "union":
                 self.fail("a union may not immediately contain another union", items)
             key = branch.name if branch.named else branch.kind
@@ -308,7 +314,7 @@ class _Parser:
             self.fail("an empty union has no values", items)
         return node
 
-    def named(self, obj: dict, kind: str, namespace: str | None) -> Node:
+    def named(self, obj: dict, kind: str, namespace: str | None, where=None, key=None) -> Node:
         preorder = self.preorder
         start = len(preorder)
         preorder.append(obj)
@@ -332,7 +338,7 @@ class _Parser:
         if full in self.names or full in PRIMITIVES:
             self.fail(f"type '{full}' is defined twice", obj)
         if kind == "record" and self.previous is not None:
-            adopted = self.adopt(full, obj)
+            adopted = self.adopt(full, obj, where, key)
             if adopted is not None:
                 # Its containers are never located in this file (the nodes hold OLD's
                 # objects): only their number counts, unless a twin is asked for.
@@ -392,7 +398,7 @@ class _Parser:
             self.around(obj, None)
         return node
 
-    def adopt(self, full: str, obj: dict) -> Node | None:
+    def adopt(self, full: str, obj: dict, where, key) -> Node | None:
         """OLD's record ``full``, when it is written exactly as ``obj`` and self-contained.
 
         It then parses to the same graph, so NEW shares OLD's nodes instead of walking its
@@ -410,6 +416,8 @@ class _Parser:
                 return None
         self.adopted.append((before.raw, obj))
         self.shared[id(obj)] = full
+        if key is not None:
+            self.sites.append((where, key, obj, full))
         for n in held:
             self.shared_names.append(n.name)
             self.names[n.name] = n
@@ -455,7 +463,7 @@ class _Parser:
                     out.append(raw)
                     plain = True
                 else:
-                    out.append(Field(name, self.parse(ftype, namespace, raw), position, False, None, (),
+                    out.append(Field(name, self.parse(ftype, namespace, raw, "type"), position, False, None, (),
                                      "ascending", doc, _NO_ANNOTATIONS, raw))
                 continue
             aliases = raw.get("aliases", ())
@@ -474,7 +482,7 @@ class _Parser:
                 ftype = primitives[ftype]
                 self.around(raw, None)
             else:
-                ftype = self.around(raw, "type", lambda: self.parse(ftype, namespace, raw))
+                ftype = self.around(raw, "type", lambda: self.parse(ftype, namespace, raw, "type"))
             has_default = "default" in raw
             f = Field(name, ftype, position, has_default, raw.get("default"), aliases, order,
                       doc if isinstance(doc, str) else None, annotations_of(raw), raw)
@@ -608,5 +616,5 @@ def parse(data, display: str, locate, previous: Model | None = None) -> Model:
     root = parser.parse(data, None, data if isinstance(data, (dict, list)) else None)
     return Model(root=root, names=parser.names, ignored_logical=parser.ignored_logical,
                  defined=parser.defined, adopted=parser.adopted, shared=parser.shared,
-                 shared_names=parser.shared_names,
+                 shared_names=parser.shared_names, sites=parser.sites,
                  preorder=parser.preorder)

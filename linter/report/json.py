@@ -71,6 +71,23 @@ def to_json(report) -> dict:
     return out
 
 
+# The C encoder; json's indent= takes the pure-Python one, which cost more than the rest
+# of the report at a few findings (benchmarks/scale.py).
+_encode = _json.JSONEncoder(ensure_ascii=False, default=str, separators=(", ", ": ")).encode
+
+
+def layout(obj: dict) -> str:
+    """A report object as text: a member per line, and each item of a list member
+    (a comparison, a finding, a consumer) on a line of its own, easy to read and to grep."""
+    lines = []
+    for key, value in obj.items():
+        if value.__class__ is list and value:
+            items = ",\n".join("    " + _encode(item) for item in value)
+            lines.append(f"  {_encode(key)}: [\n{items}\n  ]")
+        else:
+            lines.append(f"  {_encode(key)}: {_encode(value)}")
+    return "{\n" + ",\n".join(lines) + "\n}"
+
+
 def render(report, stream, **_options) -> None:
-    # One write of the joined text: dump() writes each of its hundreds of pieces.
-    stream.write(_json.dumps(to_json(report), indent=2, ensure_ascii=False, default=str) + "\n")
+    stream.write(layout(to_json(report)) + "\n")

@@ -7,7 +7,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from linter.errors import InputError
-from linter.formats import avro
+from linter.formats import avro, avro_schema
 
 from avro_strategies import evolution
 
@@ -155,19 +155,49 @@ def test_the_gate_refuses_new_beside_old_as_alone(tmp_path):
     assert "not a valid Avro schema: Default value <0> must match schema type: double" in alone.message
 
 
-def test_a_shared_record_is_named_in_the_gates_copy_and_the_file_is_untouched(tmp_path):
+def test_a_shared_record_is_named_for_the_gate_and_put_back(tmp_path, monkeypatch):
+    import fastavro
+
     old = meter({"name": "a", "type": channel("ChannelA")}, {"name": "n", "type": "int"})
     new = meter({"name": "a", "type": channel("ChannelA")}, {"name": "n", "type": "long"},
                 {"name": "again", "type": "ChannelA"})
     o = avro.load(write(tmp_path, "old.avsc", old), "old.avsc")
+    seen = []
+    real = fastavro.parse_schema
+    monkeypatch.setattr(fastavro, "parse_schema",
+                        lambda schema, *a, **k: (seen.append(json.loads(json.dumps(schema))), real(schema, *a, **k))[1])
     n = avro.load_beside(write(tmp_path, "new.avsc", new), "new.avsc", None, o)
     model = n.model.model
     assert list(model.shared.values()) == [f"{NS}.ChannelA"]
     assert model.shared_names == [f"{NS}.ChannelA", f"{NS}.ChannelAValve"]
-    copy = avro._gate_copy(n.model.model.root.raw, model.shared, set())
-    assert copy["fields"][0]["type"] == f"{NS}.ChannelA"
-    assert n.model.model.root.raw == new  # the parsed file itself is left as read
+    assert [(key, name) for _, key, _, name in model.sites] == [("type", f"{NS}.ChannelA")]
+    # fastavro was handed the name in place of the record, then the record was put back.
+    assert seen[-1]["fields"][0]["type"] == f"{NS}.ChannelA"
+    assert n.model.model.root.raw == new
     assert set(n.model.gated) >= {f"{NS}.MeterReading", f"{NS}.ChannelA", f"{NS}.ChannelAValve"}
+
+
+def test_shared_records_are_put_back_when_the_gate_refuses(tmp_path):
+    old = meter({"name": "a", "type": channel("ChannelA")})
+    new = meter({"name": "a", "type": channel("ChannelA")}, ONLY_FASTAVRO_REFUSES)
+    o = avro.load(write(tmp_path, "old.avsc", old), "old.avsc")
+    data = json.loads(json.dumps(new))
+    model = avro_schema.parse(data, "new.avsc", lambda obj: None, o.model.model)
+    assert model.sites
+    with pytest.raises(InputError, match="not a valid Avro schema"):
+        avro._fastavro_gate(data, model, "new.avsc", o.model)
+    assert data == new
+
+
+def test_a_file_written_as_old_shares_its_root_and_passes_the_gate(tmp_path):
+    # The root record itself is shared: no container holds it, so the gate is handed
+    # a copy that names it (avro._gate_copy) and the parse is left as read.
+    old = meter({"name": "a", "type": channel("ChannelA")})
+    o, alone, beside = pair(tmp_path, old, old)
+    model = beside.model.model
+    assert list(model.shared.values()) == [f"{NS}.MeterReading"] and not model.sites
+    assert model.root is o.model.model.root and model.root.raw == old
+    assert avro.diff(o, beside) == []
 
 
 def test_a_shared_record_met_where_old_had_another_is_located_in_new(tmp_path):
