@@ -86,10 +86,16 @@ class Format(Protocol):
     def diff(self, old: Schema, new: Schema) -> list[Change]: ...
 
 
+_ADAPTERS: dict[str, Format] = {}
+
+
 def adapter(name: str) -> Format:
-    if name not in FORMATS:
-        raise InputError(f"unknown format {name!r} (known: {', '.join(FORMATS)})")
-    return importlib.import_module(f".{FORMATS[name]}", __name__)
+    module = _ADAPTERS.get(name)
+    if module is None:
+        if name not in FORMATS:
+            raise InputError(f"unknown format {name!r} (known: {', '.join(FORMATS)})")
+        module = _ADAPTERS[name] = importlib.import_module(f".{FORMATS[name]}", __name__)
+    return module
 
 
 def read_text(path: Path, display: str) -> str:

@@ -65,7 +65,7 @@ class Field:
     raw: Any = None
 
 
-@dataclass(eq=False, slots=True)
+@dataclass(eq=False, slots=True, init=False)
 class Node:
     kind: str                       # a primitive name, record, enum, fixed, array, map, union
     name: str | None = None         # full name of a named type
@@ -96,6 +96,36 @@ class Node:
     # are shared or equal and never opened, so most Fields were built for nothing.
     _fields: list = field(default_factory=list, init=False, repr=False)
     _pending: dict | None = field(default=None, init=False, repr=False)
+
+    # Written out: the generated __init__ took twice as long, and a large schema makes a
+    # node per record (benchmarks/scale.py).
+    def __init__(self, kind: str, name: str | None = None, aliases: tuple[str, ...] = (), raw: Any = None,
+                 annotations: dict | None = None, doc: str | None = None, items: "Node | None" = None,
+                 branches: list | None = None, logical: str | None = None, declared_logical: str | None = None,
+                 precision: int | None = None, scale: int | None = None, size: int | None = None,
+                 symbols: tuple[str, ...] = (), enum_default: str | None = None, outside_refs: bool = True,
+                 span: tuple[int, int] | None = None, extent: int | None = None):
+        self.kind = kind
+        self.name = name
+        self.aliases = aliases
+        self.raw = raw
+        self.annotations = {} if annotations is None else annotations
+        self.doc = doc
+        self.items = items
+        self.branches = [] if branches is None else branches
+        self.logical = logical
+        self.declared_logical = declared_logical
+        self.precision = precision
+        self.scale = scale
+        self.size = size
+        self.symbols = symbols
+        self.enum_default = enum_default
+        self.outside_refs = outside_refs
+        self.span = span
+        self.extent = extent
+        self._by_name = None
+        self._fields = []
+        self._pending = None
 
     @property
     def fields(self) -> list[Field]:
@@ -345,7 +375,7 @@ class _Parser:
                 preorder.extend(repeat(None, adopted.extent - 1))
                 return adopted
         if bare:
-            node = Node(kind, full, (), annotations=_NO_ANNOTATIONS, raw=obj)
+            node = Node(kind, full, (), obj, _NO_ANNOTATIONS)
         else:
             aliases = obj.get("aliases", _MISSING)
             if aliases is _MISSING:
@@ -355,8 +385,7 @@ class _Parser:
             else:
                 self.fail(f"aliases of '{full}' must be a list of names", obj)
             doc = obj.get("doc")
-            node = Node(kind, full, aliases, doc=doc if doc.__class__ is str else None,
-                        annotations=annotations_of(obj), raw=obj)
+            node = Node(kind, full, aliases, obj, annotations_of(obj), doc if doc.__class__ is str else None)
         self.names[full] = node  # before the body: a record may refer to itself
         seq = self.order[id(node)] = len(self.order)
         self.defined.append(node)
