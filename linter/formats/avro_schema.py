@@ -467,61 +467,74 @@ class _Parser:
         preorder = self.preorder
         preorder.append(fields)
         valid = self.valid_names
-        for position, raw in enumerate(fields):
+        for raw in fields:
             if raw.__class__ is not dict:  # what json.loads gives: no subclasses
                 self.fail(f"a field of record '{node.name}' must be an object", fields)
             preorder.append(raw)
-            name = raw.get("name")
+            try:
+                name = raw["name"]
+                ftype = raw["type"]
+            except KeyError:
+                name, ftype = raw.get("name"), raw.get("type", _MISSING)
             if name.__class__ is not str or name not in valid:
                 if not isinstance(name, str) or not (name.isascii() and name.isidentifier()):
                     self.fail(f"field name {name!r} of record '{node.name}' is not a valid Avro name", raw)
                 valid.add(name)
-            if name in seen:
-                self.fail(f"record '{node.name}' has two fields named '{name}'", raw)
-            seen.add(name)
-            ftype = raw.get("type", _MISSING)
+            seen.add(name)  # two fields of one name: the count below falls short
             if ftype is _MISSING:
                 self.fail(f"field '{name}' needs a 'type'", raw)
             size = len(raw)
-            doc = raw.get("doc")
-            if (size == 2 or (size == 3 and doc is not None)) and (doc is None or doc.__class__ is str):
-                # Nothing but a name, a type and a doc: no aliases, order, default or
-                # annotations to check or copy, and no container but the type's. With a
-                # primitive type, its Field waits until the record is opened (Node.fields).
-                if ftype.__class__ is str and ftype in primitives:
-                    out.append(raw)
-                    plain = True
-                else:
-                    out.append(Field(name, self.parse(ftype, namespace, raw, "type"), position, False, None, (),
-                                     "ascending", doc, _NO_ANNOTATIONS, raw))
+            if size == 2:
+                doc = None
+            elif size != 3 or (doc := raw.get("doc")).__class__ is not str:
+                self.attributed_field(raw, name, ftype, len(out), namespace, out)
                 continue
-            aliases = raw.get("aliases", ())
-            if aliases:
-                if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
-                    self.fail(f"aliases of field '{name}' must be a list of names", raw)
-                aliases = tuple(aliases)
-            elif aliases != [] and aliases != ():
-                self.fail(f"aliases of field '{name}' must be a list of names", raw)
+            # Nothing but a name, a type and a doc: no aliases, order, default or
+            # annotations to check or copy, and no container but the type's. With a
+            # primitive type, its Field waits until the record is opened (Node.fields).
+            if ftype.__class__ is str and ftype in primitives:
+                out.append(raw)
+                plain = True
             else:
-                aliases = ()
-            order = raw.get("order", "ascending")
-            if order not in ORDERS:
-                self.fail(f"field '{name}' order must be ascending, descending or ignore, not {order!r}", raw)
-            if isinstance(ftype, str) and ftype in primitives:
-                ftype = primitives[ftype]
-                self.around(raw, None)
-            else:
-                ftype = self.around(raw, "type", lambda: self.parse(ftype, namespace, raw, "type"))
-            has_default = "default" in raw
-            f = Field(name, ftype, position, has_default, raw.get("default"), aliases, order,
-                      doc if isinstance(doc, str) else None, annotations_of(raw), raw)
-            out.append(f)
-            if has_default:
-                problem = default_problem(ftype, f.default)
-                if problem:
-                    self.fail(f"field '{name}' default {_show(f.default)} {problem}", raw)
+                out.append(Field(name, self.parse(ftype, namespace, raw, "type"), len(out), False, None, (),
+                                 "ascending", doc, _NO_ANNOTATIONS, raw))
+        if len(seen) != len(out):
+            names = [f["name"] if f.__class__ is dict else f.name for f in out]
+            twice = next(n for i, n in enumerate(names) if n in names[:i])
+            self.fail(f"record '{node.name}' has two fields named '{twice}'", fields[names.index(twice, names.index(twice) + 1)])
         if plain:
             node._pending = primitives
+
+    def attributed_field(self, raw: dict, name: str, ftype, position: int, namespace: str | None, out: list) -> None:
+        """A field with more than a name, a type and a doc (aliases, order, a default,
+        annotations or other attributes)."""
+        aliases = raw.get("aliases", ())
+        if aliases:
+            if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
+                self.fail(f"aliases of field '{name}' must be a list of names", raw)
+            aliases = tuple(aliases)
+        elif aliases != [] and aliases != ():
+            self.fail(f"aliases of field '{name}' must be a list of names", raw)
+        else:
+            aliases = ()
+        order = raw.get("order", "ascending")
+        if order not in ORDERS:
+            self.fail(f"field '{name}' order must be ascending, descending or ignore, not {order!r}", raw)
+        primitives = self.primitives
+        if isinstance(ftype, str) and ftype in primitives:
+            ftype = primitives[ftype]
+            self.around(raw, None)
+        else:
+            ftype = self.around(raw, "type", lambda: self.parse(ftype, namespace, raw, "type"))
+        has_default = "default" in raw
+        doc = raw.get("doc")
+        f = Field(name, ftype, position, has_default, raw.get("default"), aliases, order,
+                  doc if isinstance(doc, str) else None, annotations_of(raw), raw)
+        out.append(f)
+        if has_default:
+            problem = default_problem(ftype, f.default)
+            if problem:
+                self.fail(f"field '{name}' default {_show(f.default)} {problem}", raw)
 
     def enum(self, node: Node, obj: dict):
         symbols = obj.get("symbols")

@@ -196,3 +196,23 @@ def test_the_name_check_is_the_spec_pattern(text):
     import re
 
     assert (text.isascii() and text.isidentifier()) == bool(re.fullmatch(r"[A-Za-z_][A-Za-z0-9_]*", text))
+
+
+@pytest.mark.parametrize("second", [{"name": "volume", "type": "int"},
+                                    {"name": "volume", "type": "int", "default": 0},
+                                    {"name": "volume", "type": {"type": "record", "name": "V", "fields": []}}])
+def test_a_second_field_of_one_name_is_refused_where_it_stands(tmp_path, second):
+    # Avro specification 1.12.0, "Complex Types", records: field names are unique within
+    # a record. The message names the field; the position is that of the second one.
+    from linter.errors import InputError
+    from linter.formats import avro
+
+    data = {"type": "record", "name": "R", "fields": [{"name": "volume", "type": "long", "doc": "d"},
+                                                      {"name": "flow", "type": "long"}, second]}
+    path = write(tmp_path, "dup.avsc", data)
+    with pytest.raises(InputError) as caught:
+        avro.load(path, "dup.avsc")
+    text = path.read_text().splitlines()
+    expected = [i for i, line in enumerate(text, 1) if '"name": "volume"' in line][1]
+    assert "two fields named 'volume'" in caught.value.message
+    assert caught.value.line == expected
