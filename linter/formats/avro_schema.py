@@ -45,6 +45,8 @@ LOGICAL = {
 }
 ORDERS = ("ascending", "descending", "ignore")
 _NO_ANNOTATIONS: dict = {}  # shared and never written to
+# The keys of a field whose Field may wait until its record is opened (Node.fields).
+_NOTED = frozenset(("name", "type", "doc", "unit", "meaning"))
 _MISSING = object()
 INT_RANGE = {"int": (-2**31, 2**31 - 1), "long": (-2**63, 2**63 - 1)}
 
@@ -90,10 +92,11 @@ class Node:
     span: tuple[int, int] | None = None
     extent: int | None = None  # records: how many JSON containers the definition holds
     _by_name: Any = field(default=None, init=False, repr=False)
-    # A record's fields, where the plainest ones (a name, a primitive type by name, a doc)
-    # may still be their JSON objects: ``fields`` builds their Field on first use, with
-    # the parse's node of each primitive (``_pending``). Most records of a large schema
-    # are shared or equal and never opened, so most Fields were built for nothing.
+    # A record's fields, where the plainest ones (a name, a primitive type by name, and
+    # strings for doc, unit and meaning) may still be their JSON objects: ``fields``
+    # builds their Field on first use, with the parse's node of each primitive
+    # (``_pending``). Most records of a large schema are shared or equal and never
+    # opened, so most Fields were built for nothing.
     _fields: list = field(default_factory=list, init=False, repr=False)
     _pending: dict | None = field(default=None, init=False, repr=False)
 
@@ -134,7 +137,7 @@ class Node:
             self._fields = [
                 f if f.__class__ is Field else
                 Field(f["name"], primitives[f["type"]], i, False, None, (), "ascending", f.get("doc"),
-                      _NO_ANNOTATIONS, f)
+                      annotations_of(f), f)
                 for i, f in enumerate(self._fields)]
             self._pending = None
         return self._fields
@@ -202,7 +205,7 @@ class Model:
 def annotations_of(obj: dict) -> dict:
     """The unit and meaning attributes of a field or a named type (docs/avro.md)."""
     if "unit" not in obj and "meaning" not in obj:  # most fields: no new dict per lookup
-        return {}
+        return _NO_ANNOTATIONS
     return {k: obj[k].strip() for k in ("unit", "meaning") if isinstance(obj.get(k), str)}
 
 
@@ -487,6 +490,17 @@ class _Parser:
             if size == 2:
                 doc = None
             elif size != 3 or (doc := raw.get("doc")).__class__ is not str:
+                # A primitive field with a unit or meaning and strings alone (no
+                # container to list) waits for Node.fields too: the annotated fields
+                # of a large schema are seldom opened either.
+                if ftype.__class__ is str and ftype in primitives and raw.keys() <= _NOTED:
+                    for value in raw.values():
+                        if value.__class__ is not str:
+                            break
+                    else:
+                        out.append(raw)
+                        plain = True
+                        continue
                 self.attributed_field(raw, name, ftype, len(out), namespace, out)
                 continue
             # Nothing but a name, a type and a doc: no aliases, order, default or
