@@ -512,10 +512,12 @@ class _Parser:
             else:
                 out.append(Field(name, self.parse(ftype, namespace, raw, "type"), len(out), False, None, (),
                                  "ascending", doc, _NO_ANNOTATIONS, raw))
-        if len(seen) != len(out):
-            names = [f["name"] if f.__class__ is dict else f.name for f in out]
-            twice = next(n for i, n in enumerate(names) if n in names[:i])
-            self.fail(f"record '{node.name}' has two fields named '{twice}'", fields[names.index(twice, names.index(twice) + 1)])
+        if len(seen) != len(out):  # a name met twice: refused at its second field
+            met = set()
+            for raw in fields:
+                if raw["name"] in met:
+                    self.fail(f"record '{node.name}' has two fields named '{raw['name']}'", raw)
+                met.add(raw["name"])
         if plain:
             node._pending = primitives
 
