@@ -10,7 +10,13 @@ the comparison's instructions; their ratio is printed
 beside the bound of ``scale.py`` (2x). Instructions are not time (a cache miss costs more
 than an add), so this complements the wall clock, it does not replace it.
 
+Where one size is ten times the one before, the growth of the comparison's instructions
+is printed against the growth bound of ``scale.py`` (12x), beside the floor's: the count
+of work done, without what the machine's caches make of it (at 100,000 Avro fields the
+wall clock of ``json.loads`` alone grows faster than the fields, docs/performance.md).
+
     python benchmarks/instructions.py [--formats avro,jsonschema,protobuf] [--sizes 1000,10000]
+    python benchmarks/instructions.py --sizes 10000,100000    # growth (a few minutes)
 """
 from __future__ import annotations
 
@@ -67,13 +73,19 @@ def main() -> None:
     print(f"{'format':<11}{'fields':>8}{'floor Mi':>11}{'total Mi':>11}  total/floor (instructions)")
     with tempfile.TemporaryDirectory() as tmp:
         for fmt in args.formats.split(","):
+            previous = None
             for n in (int(s) for s in args.sizes.split(",")):
                 old, new = gen.write_pair(fmt, n, Path(tmp, fmt))
                 base = instructions(old, new, fmt, "warm", tmp)
                 floor = instructions(old, new, fmt, "floor", tmp) - base
                 total = instructions(old, new, fmt, "total", tmp) - base
-                print(f"{fmt:<11}{n:>8}{floor / 1e6:>11.1f}{total / 1e6:>11.1f}  "
-                      f"{verdicts.check(f'{fmt} {n} vs floor', total / floor, 2)}", flush=True)
+                line = (f"{fmt:<11}{n:>8}{floor / 1e6:>11.1f}{total / 1e6:>11.1f}  "
+                        f"{verdicts.check(f'{fmt} {n} vs floor', total / floor, 2)}")
+                if previous and n == previous[0] * 10:
+                    line += (f"; growth x10 fields: {verdicts.check(f'{fmt} {n} growth', total / previous[1], 12)}"
+                             f" (floor's own {floor / previous[2]:.2f}x)")
+                print(line, flush=True)
+                previous = (n, total, floor)
     verdicts.exit()
 
 

@@ -12,7 +12,15 @@ growth of the floor alone and of the time added above it are printed beside the 
 where the libraries themselves grow faster than 12x (json and fastavro at 100,000 Avro
 fields), the total follows them.
 
+In one process, the runs of a small comparison reuse the memory the run before freed,
+while each run of a 100,000-field comparison takes its heap from the system again (Avro:
+about 250 page faults a run at 10,000 fields, 45,000 at 100,000, docs/performance.md), so
+growth is measured against a warm small run. ``--fresh`` times every run in a new
+interpreter instead, as ``evolint check`` runs: warmed up on a 10-field pair (imports,
+the rule catalogue), then one floor or one comparison, timed inside the process.
+
     python benchmarks/scale.py [--formats avro,jsonschema,protobuf] [--sizes 1000,10000,100000]
+    python benchmarks/scale.py --formats avro --fresh   # a new process per run
     python benchmarks/scale.py --profile avro:100000     # cProfile of one comparison
     python benchmarks/scale.py --formats protobuf --repeat 15   # more runs per median (noisy machine)
 """
@@ -22,12 +30,13 @@ import argparse
 import importlib.util
 import io
 import json
+import subprocess
 import sys
 import tempfile
 from pathlib import Path
 
 import gen
-from common import Verdicts, timed_pair
+from common import HERE, Verdicts, timed_pair
 
 SIZES = {"avro": (1000, 10000, 100000), "jsonschema": (1000, 10000, 100000), "protobuf": (500, 5000)}
 
@@ -78,6 +87,38 @@ def total(old: Path, new: Path) -> None:
     render("json", api.check(old, new), io.StringIO())
 
 
+# One timed run in a new interpreter (``--fresh``): argv is fmt, step, old, new, and a
+# small pair to warm up on; prints the seconds.
+CHILD = """
+import gc, sys, time
+from pathlib import Path
+sys.path.insert(0, {here!r})
+import scale
+fmt, step, old, new, tiny_old, tiny_new = sys.argv[1:7]
+scale.FLOORS[fmt](Path(tiny_old), Path(tiny_new))
+scale.total(Path(tiny_old), Path(tiny_new))
+gc.collect()
+run = scale.total if step == "total" else scale.FLOORS[fmt]
+start = time.perf_counter()
+run(Path(old), Path(new))
+print(time.perf_counter() - start)
+"""
+
+
+def timed_pair_fresh(fmt: str, old: Path, new: Path, tiny: tuple[Path, Path], repeat: int) -> tuple[float, float]:
+    """As ``timed_pair``, each run in its own interpreter (fastest of ``repeat`` each)."""
+    code = CHILD.format(here=str(HERE))
+    best = {"floor": float("inf"), "total": float("inf")}
+    for _ in range(repeat):
+        for step in best:
+            proc = subprocess.run([sys.executable, "-c", code, fmt, step, str(old), str(new), *map(str, tiny)],
+                                  capture_output=True, text=True)
+            if proc.returncode != 0:
+                raise SystemExit(f"{fmt} {step} run failed:\n{proc.stderr[-2000:]}")
+            best[step] = min(best[step], float(proc.stdout))
+    return best["floor"], best["total"]
+
+
 def landed(fmt: str) -> bool:
     return importlib.util.find_spec(f"linter.formats.{fmt}") is not None
 
@@ -103,7 +144,8 @@ def main() -> None:
     parser.add_argument("--formats", default="avro,jsonschema,protobuf")
     parser.add_argument("--sizes", help="comma-separated field counts (default per format)")
     parser.add_argument("--profile", metavar="FORMAT:FIELDS")
-    parser.add_argument("--repeat", type=int, help="runs per median (default: 5, 3 or 1 by size)")
+    parser.add_argument("--repeat", type=int, help="runs of each, the fastest kept (default: 21, 9 or 3 by size)")
+    parser.add_argument("--fresh", action="store_true", help="each run in a new interpreter")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
         if args.profile:
@@ -116,11 +158,15 @@ def main() -> None:
                 continue
             sizes = [int(s) for s in args.sizes.split(",")] if args.sizes else SIZES[fmt]
             previous = None
+            tiny = gen.write_pair(fmt, 10, Path(tmp, f"{fmt}-warm"))
             for n in sizes:
                 old, new = gen.write_pair(fmt, n, Path(tmp, fmt))
-                total(old, new)  # warm: imports and the catalogue load once per process
                 runs = args.repeat or repeats(n)
-                floor_s, total_s = timed_pair(lambda: FLOORS[fmt](old, new), lambda: total(old, new), runs)
+                if args.fresh:
+                    floor_s, total_s = timed_pair_fresh(fmt, old, new, tiny, runs)
+                else:
+                    total(old, new)  # warm: imports and the catalogue load once per process
+                    floor_s, total_s = timed_pair(lambda: FLOORS[fmt](old, new), lambda: total(old, new), runs)
                 line = (f"{fmt:<11}{n:>8}{floor_s:>10.3f}{total_s:>10.3f}  "
                         f"{verdicts.check(f'{fmt} {n} vs floor', total_s / floor_s, 2)}")
                 if previous and n == previous[0] * 10:
