@@ -23,12 +23,4 @@ class collector_paused:
 
     def __exit__(self, *exc):
         if self.was_enabled:
-            if not gc.get_freeze_count():
-                # What the pause built and still holds would be traversed by the next young
-                # collection, and by the one after it, before reaching the oldest generation
-                # (a 20 ms pass at 100,000 Avro fields, benchmarks/scale.py). freeze() then
-                # unfreeze() moves every tracked object there at once; skipped where the
-                # caller froze objects of its own, which unfreeze() would release.
-                gc.freeze()
-                gc.unfreeze()
             gc.enable()
