@@ -22,7 +22,7 @@ the rule catalogue), then one floor or one comparison, timed inside the process.
     python benchmarks/scale.py [--formats avro,jsonschema,protobuf] [--sizes 1000,10000,100000]
     python benchmarks/scale.py --formats avro --fresh   # a new process per run
     python benchmarks/scale.py --profile avro:100000     # cProfile of one comparison
-    python benchmarks/scale.py --formats protobuf --repeat 15   # more runs per median (noisy machine)
+    python benchmarks/scale.py --formats protobuf --repeat 15   # more runs (the fastest counts)
 """
 from __future__ import annotations
 
@@ -158,7 +158,7 @@ def main() -> None:
                 continue
             sizes = [int(s) for s in args.sizes.split(",")] if args.sizes else SIZES[fmt]
             previous = None
-            tiny = gen.write_pair(fmt, 10, Path(tmp, f"{fmt}-warm"))
+            tiny = gen.write_pair(fmt, 10, Path(tmp, f"{fmt}-warm")) if args.fresh else None
             for n in sizes:
                 old, new = gen.write_pair(fmt, n, Path(tmp, fmt))
                 runs = args.repeat or repeats(n)

@@ -36,7 +36,6 @@ def test_restored_on_error_and_a_disabled_collector_stays_disabled(restore_colle
     assert not gc.isenabled()
 
 
-
 class _Cell:
     pass
 
