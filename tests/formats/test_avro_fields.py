@@ -4,8 +4,9 @@ The plainest fields (a name, a primitive type by name, strings for doc, unit and
 keep their JSON object until the record is first opened (``Node.fields``,
 linter/formats/avro_schema.py); every field must then hold what the Avro specification
 1.12.0 ("Complex Types", Records) says its attributes mean: ``order`` ascending and
-``aliases`` empty when absent, a default only where one is written; and the unit and meaning annotations are the strings written there,
-stripped (docs/annotations.md), none where they are absent or not strings.
+``aliases`` empty when absent, a default only where one is written; and the unit and
+meaning annotations are the strings written there, stripped (docs/annotations.md), none
+where they are absent or not strings.
 """
 import json
 from pathlib import Path
